@@ -1,0 +1,99 @@
+/**
+ * Planning a whole task for one robot against the reserved paths of the others, as the
+ * decoupled policies do (token passing, Ma et al. AAMAS 2017; prioritized planning, Silver
+ * 2005): space-time A* to the pickup with room to stay for the pickup handling, then to the
+ * drop (and back to the shelf's storage point for a round trip), ending in a rest that no
+ * other robot's path crosses. The returned path lists the robot's cell at every tick from
+ * `tick` to the end of its last handling, waits included, matching the engine's handling
+ * convention (see sim/policy.ts).
+ */
+import type { DistanceTables } from '../../sim/distance-table.ts';
+import type { ReservationTable } from '../../sim/reservation-table.ts';
+import type { SpaceTimeAStar } from '../../sim/space-time-astar.ts';
+import type { World } from '../../sim/world.ts';
+
+export interface TaskPlan {
+  path: Int32Array;
+  /** Tick at which the robot reaches the pickup. */
+  pickupTick: number;
+}
+
+export interface Planner {
+  world: World;
+  table: ReservationTable;
+  search: SpaceTimeAStar;
+  distances: DistanceTables;
+}
+
+/** Plans robot r, standing at `from` at `tick`, through the task's stops; null when any leg fails. */
+export function planTask(planner: Planner, robot: number, from: number, tick: number, task: number): TaskPlan | null {
+  const { world } = planner;
+  const stops: { cell: number; hold: number }[] = [{ cell: world.taskPickup[task], hold: world.taskPickupTicks[task] }];
+  stops.push({ cell: world.taskDrop[task], hold: world.taskDropTicks[task] });
+  if (world.taskReturn[task] >= 0) stops.push({ cell: world.taskReturn[task], hold: world.taskReturnTicks[task] });
+  return planStops(planner, robot, from, tick, stops);
+}
+
+/** Plans the rest of a task a robot already carries (after pickup), e.g. after a replan. */
+export function planRemainingStops(planner: Planner, robot: number, from: number, tick: number, stops: { cell: number; hold: number }[]): TaskPlan | null {
+  return planStops(planner, robot, from, tick, stops);
+}
+
+function planStops(planner: Planner, robot: number, from: number, tick: number, stops: { cell: number; hold: number }[]): TaskPlan | null {
+  const { table, search, distances } = planner;
+  let estimate = 64;
+  let previous = from;
+  for (const stop of stops) {
+    estimate += 3 * distances.distance(previous, stop.cell) + stop.hold;
+    previous = stop.cell;
+  }
+  table.ensureHorizon(estimate);
+  const pieces: Int32Array[] = [];
+  let cell = from;
+  let t = tick;
+  let pickupTick = -1;
+  for (let i = 0; i < stops.length; i++) {
+    const stop = stops[i];
+    const last = i === stops.length - 1;
+    const leg = search.search({
+      robot,
+      start: cell,
+      startTick: t,
+      goal: stop.cell,
+      heuristic: distances.to(stop.cell),
+      holdTicks: stop.hold,
+      restForever: last,
+    });
+    if (!leg) return null;
+    // Skip the first cell of every leg after the first: it repeats the previous leg's last cell.
+    pieces.push(i === 0 ? leg : leg.subarray(1));
+    t += leg.length - 1;
+    if (i === 0) pickupTick = t;
+    if (stop.hold > 0) pieces.push(new Int32Array(stop.hold).fill(stop.cell));
+    t += stop.hold;
+    cell = stop.cell;
+  }
+  let length = 0;
+  for (const piece of pieces) length += piece.length;
+  const path = new Int32Array(length);
+  let offset = 0;
+  for (const piece of pieces) {
+    path.set(piece, offset);
+    offset += piece.length;
+  }
+  return { path, pickupTick };
+}
+
+/** Plans a move to `goal` ending in a rest there (parking). */
+export function planRest(planner: Planner, robot: number, from: number, tick: number, goal: number): Int32Array | null {
+  planner.table.ensureHorizon(3 * planner.distances.distance(from, goal) + 64);
+  return planner.search.search({
+    robot,
+    start: from,
+    startTick: tick,
+    goal,
+    heuristic: planner.distances.to(goal),
+    holdTicks: 0,
+    restForever: true,
+  });
+}

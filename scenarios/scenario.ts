@@ -1,0 +1,79 @@
+/**
+ * The validated, normalized scenario the engine runs. The loader (scenarios/load.ts) turns
+ * the YAML contract of DESIGN §3 into this shape; nothing downstream re-validates.
+ * All user quantities stay in seconds, meters and tasks per hour here; the engine converts
+ * to ticks.
+ */
+
+export type HandlingSpec =
+  | { dist: 'fixed'; seconds: number }
+  | { dist: 'uniform'; min: number; max: number }
+  | { dist: 'exponential'; mean: number };
+
+/** How a pickup or drop point is chosen for a new task. Weights are keyed by cell index. */
+export type PointChoice =
+  | { kind: 'uniform' }
+  | { kind: 'weights'; weights: Map<number, number> }
+  | { kind: 'zipf'; skew: number };
+
+/**
+ * `delivery`: pickup at a P point, drop at a D point (parcel sortation).
+ * `round-trip`: goods-to-person; take a shelf from an S point to a D pick station, wait the
+ * pick, return the shelf to the same S point.
+ */
+export type DemandMode = 'delivery' | 'round-trip';
+
+export type DemandSpec =
+  | { kind: 'poisson'; mode: DemandMode; tasksPerHour: number; profile: number[] | null; pickups: PointChoice; drops: PointChoice }
+  | { kind: 'saturated'; mode: DemandMode; pickups: PointChoice; drops: PointChoice }
+  | { kind: 'trace'; mode: DemandMode; tracePath: string; tasks: TraceTask[] };
+
+export interface TraceTask {
+  releaseSeconds: number;
+  pickup: number;
+  drop: number;
+}
+
+export interface RunSpec {
+  hours: number;
+  /** 'auto' = MSER-5 on the throughput series; a number = fixed warm-up in hours. */
+  warmup: 'auto' | number;
+  replications: number;
+  seed: number;
+  confidence: number;
+  /** Length of one metric sample interval (the throughput series), seconds. */
+  sampleSeconds: number;
+  /** A robot holding a goal that makes no progress this long is in a deadlock episode. */
+  deadlockSeconds: number;
+  /** Seconds after detection until a modelled operator clears the deadlocked robots to parking; 0 disables clearing. */
+  recoverySeconds: number;
+}
+
+export interface Scenario {
+  name: string;
+  /** Absolute path of the scenario file, or null when built in code. */
+  sourcePath: string | null;
+  units: { cellMeters: number; robotSpeedMps: number };
+  layoutText: string;
+  handling: { pickupSeconds: HandlingSpec; dropSeconds: HandlingSpec };
+  fleet: { robots: number };
+  demand: DemandSpec;
+  policy: { name: string; options: Record<string, unknown> };
+  run: RunSpec;
+}
+
+export const defaultRun: RunSpec = {
+  hours: 4,
+  warmup: 'auto',
+  replications: 5,
+  seed: 1,
+  confidence: 0.95,
+  sampleSeconds: 60,
+  deadlockSeconds: 120,
+  recoverySeconds: 300,
+};
+
+/** Seconds per tick: the time a robot needs to cross one cell at nominal speed. */
+export function tickSecondsOf(scenario: Pick<Scenario, 'units'>): number {
+  return scenario.units.cellMeters / scenario.units.robotSpeedMps;
+}

@@ -1,0 +1,59 @@
+/**
+ * The one interface between the engine and every dispatch-and-routing policy, planned
+ * (paths reserved in space-time) or reactive (one move per tick).
+ *
+ * At every tick where something happened (a task released, a handling finished, robots
+ * moved, or the policy asked to be woken) the engine calls `step(tick, moves)`. The policy
+ * may assign tasks through `world.assign` / `world.unassign`, and writes into `moves[r]` the
+ * cell robot r should occupy at tick + 1 (the engine pre-fills each entry with the robot's
+ * current cell, i.e. wait). Robots that are handling stay put whatever the policy writes.
+ * The return value is the next tick at which the policy needs a call even if nothing else
+ * happens: tick + 1 while any robot follows a plan or waits to retry, Infinity when every
+ * robot rests. The engine never trusts the moves: an independent validator checks each
+ * executed tick for vertex and swap collisions.
+ *
+ * Handling convention: a robot that reaches its pickup (drop, return) cell at tick t starts
+ * handling at once and stays on the cell through tick t + h, h the task's handling ticks;
+ * it may move again from t + h to t + h + 1. Planned policies include these waits.
+ */
+import type { z } from 'zod';
+import type { Layout } from './layout.ts';
+import type { DistanceTables } from './distance-table.ts';
+import type { World } from './world.ts';
+
+export interface Policy {
+  step(tick: number, moves: Int32Array): number;
+  /** The engine moved robot r off the floor to a parking cell (an operator clearing a deadlock). */
+  onRelocated?(robot: number, tick: number): void;
+  /** Policy-specific counters for the run summary (e.g. searches, expansions). */
+  counters?(): Record<string, number>;
+}
+
+export interface PolicyContext {
+  readonly world: World;
+  readonly layout: Layout;
+  readonly distances: DistanceTables;
+  readonly tickSeconds: number;
+  /** A random stream of the policy's own (purpose "policy"), for tie-breaking if it wants one. */
+  readonly random: () => number;
+}
+
+export interface PolicyOptionDoc {
+  name: string;
+  default: string | number | boolean;
+  unit: string;
+  description: string;
+}
+
+export interface PolicyFactory<Options = Record<string, unknown>> {
+  name: string;
+  /** One line for `fleetwright policies`. */
+  summary: string;
+  /** The published source of the method. */
+  source: string;
+  /** Planned policies reserve paths, so the engine must not relocate their robots. */
+  allowsRecovery: boolean;
+  options: z.ZodType<Options>;
+  optionDocs: PolicyOptionDoc[];
+  create(context: PolicyContext, options: Options): Policy;
+}
