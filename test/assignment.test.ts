@@ -362,7 +362,11 @@ function checkFlowFeasible(mcf: MinCostFlow, ids: number[], net: Net, value: num
 describe('MinCostFlow vs HiGHS LP optimum', () => {
   let highs: Highs;
   beforeAll(async () => {
-    highs = await (await import('highs')).default();
+    // At runtime Node/vitest resolve the package's "import" condition (build/highs.mjs),
+    // whose default export is the loader. TypeScript (NodeNext) sees a CommonJS package
+    // ("type": "commonjs") and types `.default` as the whole module, hence the cast.
+    const mod = (await import('highs')) as unknown as { default: () => Promise<Highs> };
+    highs = await mod.default();
   });
 
   it('matches max-flow value and min cost on 40 random networks (full and partial flow)', () => {
