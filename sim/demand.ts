@@ -36,7 +36,7 @@ export function makeHandlingSampler(spec: HandlingSpec, tickSeconds: number): (r
     case 'exponential': {
       const { mean } = spec;
       // Inverse transform; 1 - u lies in (0, 1], so the logarithm is finite.
-      return (rng) => toTicks(-mean * 1.02 * Math.log(1 - rng()));
+      return (rng) => toTicks(-mean * Math.log(1 - rng()));
     }
   }
 }

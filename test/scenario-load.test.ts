@@ -172,7 +172,6 @@ describe('loadScenarioFile rejects malformed scenarios with one-line InputErrors
     const message = (thrown as Error).message;
     expect(message).toMatch(c.message);
     expect(message).not.toContain('\n');
-    if (process.env.SHOW_MESSAGES) console.log(message);
     // The trace file names itself; everything else names the scenario file.
     expect(message.startsWith(file) || message.startsWith('orders.csv') || message.includes(`${path.sep}orders.csv`)).toBe(true);
   });

