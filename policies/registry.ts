@@ -6,8 +6,9 @@ import type { PolicyFactory } from '../sim/policy.ts';
 import { InputError } from '../sim/errors.ts';
 import { tokenPassing } from './token-passing/index.ts';
 import { tokenPassingSwaps } from './token-passing-swaps/index.ts';
+import { greedyReactive } from './greedy-reactive/index.ts';
 
-export const policies: readonly PolicyFactory<any>[] = [tokenPassing, tokenPassingSwaps];
+export const policies: readonly PolicyFactory<any>[] = [tokenPassing, tokenPassingSwaps, greedyReactive];
 
 export function policyNames(): string[] {
   return policies.map((p) => p.name);

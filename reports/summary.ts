@@ -74,8 +74,9 @@ export function warmupCut(scenario: Scenario, records: ReplicationRecord[]): War
   return { method: 'mser-5', seconds: cut.cutObservations * intervalSeconds, intervals: cut.cutObservations, tooShort: cut.tooShort };
 }
 
-export function summarize(scenario: Scenario, records: ReplicationRecord[], wallSeconds: number): SummaryParts {
-  const warmup = warmupCut(scenario, records);
+/** `warmupOverride` imposes one cut on several runs (a comparison aligns its windows). */
+export function summarize(scenario: Scenario, records: ReplicationRecord[], wallSeconds: number, warmupOverride?: WarmupInfo): SummaryParts {
+  const warmup = warmupOverride ?? warmupCut(scenario, records);
   const intervalCount = records[0].metrics.intervalCount;
   const perReplication = records.map((r) => windowMetrics(r, warmup.intervals, intervalCount));
   const confidence = scenario.run.confidence;

@@ -1,0 +1,108 @@
+/**
+ * The commander program. Commands are thin: they parse options, call library code
+ * (sim/experiment.ts, reports/*) and print. Every option is declared once with its default
+ * in the description. Failures map to exit codes in cli/exit.ts.
+ */
+import { Command, Option } from 'commander';
+import { reportFailure } from './exit.ts';
+import type { ScenarioOverrides } from '../scenarios/load.ts';
+
+const program = new Command();
+program
+  .name('fleetwright')
+  .description('Simulate robot fleets doing lifelong pickup-and-delivery work on a grid floor: size fleets and compare dispatch policies with confidence intervals.')
+  .version('0.1.0')
+  .showHelpAfterError('(run with --help for usage)')
+  .exitOverride()
+  .configureOutput({ writeErr: (text) => process.stderr.write(text.startsWith('error:') ? `fleetwright: ${text}` : text) });
+
+/** Options shared by commands that run a scenario; each overrides the scenario field of the same meaning. */
+function addRunOptions(command: Command): Command {
+  return command
+    .addOption(new Option('--robots <n>', 'fleet size (overrides fleet.robots)'))
+    .addOption(new Option('--hours <h>', 'simulated hours per replication (overrides run.hours; default 4)'))
+    .addOption(new Option('--reps <r>', 'replications (overrides run.replications; default 5)'))
+    .addOption(new Option('--seed <s>', 'base random seed (overrides run.seed; default 1)'))
+    .addOption(new Option('--rate <tph>', 'Poisson demand in tasks per hour (overrides demand.tasksPerHour)'))
+    .addOption(new Option('--trace <file>', 'replay a task trace CSV: releaseSeconds,pickup,drop (cells as x:y)'))
+    .addOption(new Option('--warmup <hours|auto>', "warm-up to cut: hours, or 'auto' for MSER-5 (overrides run.warmup)"))
+    .addOption(new Option('--json', 'print one JSON document on stdout instead of the table'));
+}
+
+interface RunOptionValues {
+  robots?: string;
+  hours?: string;
+  reps?: string;
+  seed?: string;
+  rate?: string;
+  trace?: string;
+  warmup?: string;
+  json?: boolean;
+  policy?: string;
+  out?: string;
+}
+
+/** Option strings to overrides; the loader validates them and names the option in errors. */
+export function overridesFrom(options: RunOptionValues): ScenarioOverrides {
+  const number = (value: string | undefined): number | undefined => (value === undefined ? undefined : value.trim() === '' ? NaN : Number(value));
+  return {
+    robots: number(options.robots),
+    hours: number(options.hours),
+    replications: number(options.reps),
+    seed: number(options.seed),
+    tasksPerHour: number(options.rate),
+    trace: options.trace,
+    policy: options.policy,
+    warmup: options.warmup === undefined ? undefined : options.warmup === 'auto' ? 'auto' : number(options.warmup),
+  };
+}
+
+addRunOptions(
+  program
+    .command('run')
+    .description('simulate a scenario and print throughput, station idle and starved time, lead time, robot time and deadlocks with intervals')
+    .argument('<scenario>', 'scenario YAML file')
+    .addOption(new Option('--policy <name>', 'dispatch-and-routing policy (overrides policy.name; see `fleetwright policies`)'))
+    .addOption(new Option('--out <dir>', 'also write summary.json, replications.csv, throughput.csv and stations.csv into this folder')),
+).action(async (scenarioPath: string, options: RunOptionValues) => {
+  const { runCommand } = await import('./commands/run.ts');
+  await runCommand(scenarioPath, options.json === true, options.out, overridesFrom(options));
+});
+
+addRunOptions(
+  program
+    .command('compare')
+    .description('run several policies on the same random tasks (common random numbers) and test their differences with paired, Bonferroni-adjusted intervals')
+    .argument('<scenario>', 'scenario YAML file')
+    .requiredOption('--policies <a,b,...>', 'comma-separated policy names (at least two)')
+    .addOption(new Option('--out <dir>', 'also write comparison.json and differences.csv into this folder')),
+).action(async (scenarioPath: string, options: RunOptionValues & { policies: string }) => {
+  const { compareCommand } = await import('./commands/compare.ts');
+  await compareCommand(scenarioPath, options.policies, options.json === true, options.out, overridesFrom(options));
+});
+
+program
+  .command('check')
+  .description('summarize a layout and test it: connected, well-formed (Ma et al. 2017), and if not, which two endpoints break it')
+  .argument('<scenario>', 'scenario YAML file')
+  .addOption(new Option('--robots <n>', 'fleet size to check parking against (overrides fleet.robots)'))
+  .addOption(new Option('--json', 'print one JSON document on stdout'))
+  .action(async (scenarioPath: string, options: { json?: boolean; robots?: string }) => {
+    const { checkCommand } = await import('./commands/check.ts');
+    checkCommand(scenarioPath, options.json === true, overridesFrom({ robots: options.robots }));
+  });
+
+program
+  .command('policies')
+  .description('list the dispatch-and-routing policies with their options')
+  .addOption(new Option('--json', 'print one JSON document on stdout'))
+  .action(async (options: { json?: boolean }) => {
+    const { policiesCommand } = await import('./commands/policies.ts');
+    policiesCommand(options.json === true);
+  });
+
+try {
+  await program.parseAsync(process.argv);
+} catch (error) {
+  process.exitCode = reportFailure(error);
+}

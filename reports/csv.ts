@@ -1,0 +1,70 @@
+/**
+ * Spreadsheet outputs (csv-stringify): one row per replication, the throughput time
+ * series, and per-station fractions. Deterministic: no wall-clock values.
+ */
+import { stringify } from 'csv-stringify/sync';
+import type { ReplicationRecord } from '../sim/engine.ts';
+import type { WindowMetrics } from './window-metrics.ts';
+import type { RunSummary } from './summary.ts';
+
+const round = (v: number, digits = 6): number | string => (Number.isFinite(v) ? Number(v.toFixed(digits)) : '');
+
+export function replicationsCsv(records: ReplicationRecord[], perReplication: WindowMetrics[]): string {
+  const rows = records.map((record, i) => {
+    const w = perReplication[i];
+    return {
+      replication: record.replication,
+      throughputPerHour: round(w.throughputPerHour),
+      leadTimeSeconds: round(w.leadTimeSeconds),
+      leadTimeP50Seconds: round(w.leadTimeP50Seconds),
+      leadTimeP95Seconds: round(w.leadTimeP95Seconds),
+      tasksInSystem: round(w.tasksInSystem),
+      stationIdleFraction: round(w.stationIdleFraction),
+      stationStarvedFraction: round(w.stationStarvedFraction),
+      robotLoadedFraction: round(w.robotTime.loaded),
+      robotEmptyFraction: round(w.robotTime.empty),
+      robotHandlingFraction: round(w.robotTime.handling),
+      robotWaitingFraction: round(w.robotTime.waiting),
+      robotParkedFraction: round(w.robotTime.parked),
+      deadlocks: w.deadlocks,
+      deadlockRobotHoursLost: round(w.deadlockRobotHoursLost),
+      deliveredAfterWarmup: w.delivered,
+      released: record.released,
+      delivered: record.delivered,
+      open: record.open,
+      collisions: record.collisions,
+      agentSteps: record.agentSteps,
+    };
+  });
+  return stringify(rows, { header: true });
+}
+
+export function throughputSeriesCsv(records: ReplicationRecord[], cutIntervals: number): string {
+  const rows: Record<string, number | string>[] = [];
+  for (const record of records) {
+    const m = record.metrics;
+    const tickSeconds = record.tickSeconds;
+    for (let i = 0; i < m.intervalCount; i++) {
+      const ticks = m.intervalLength(i);
+      const hours = (ticks * tickSeconds) / 3600;
+      rows.push({
+        replication: record.replication,
+        startSeconds: round(i * m.intervalTicks * tickSeconds),
+        endSeconds: round((i * m.intervalTicks + ticks) * tickSeconds),
+        released: m.releases[i],
+        delivered: m.deliveries[i],
+        throughputPerHour: round(m.deliveries[i] / hours),
+        tasksInSystem: round(m.tasksInSystemArea[i] / ticks),
+        warmup: i < cutIntervals ? 1 : 0,
+      });
+    }
+  }
+  return stringify(rows, { header: true });
+}
+
+export function stationsCsv(summary: RunSummary): string {
+  return stringify(
+    summary.stations.map((s) => ({ cell: s.cell, kind: s.kind, idleFraction: round(s.idleFraction), starvedFraction: round(s.starvedFraction) })),
+    { header: true },
+  );
+}
