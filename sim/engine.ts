@@ -333,7 +333,11 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
   };
   const recover = (episodeId: number, t: number): void => {
     const episode = episodes[episodeId];
-    for (const r of [...episode.members].sort((a, b) => a - b)) {
+    // The operator leaves one robot of the jam (the lowest-numbered) in place and drives the
+    // others to parking, so the one left can go on; clearing every robot to parking can
+    // rebuild the same head-on jam when they set out again.
+    const members = [...episode.members].sort((a, b) => a - b);
+    for (const r of members.slice(members.length > 1 ? 1 : 0)) {
       const target = nearestFreeParking(world, layout, distances, world.robotCell[r]);
       if (target < 0) continue;
       const from = world.robotCell[r];
@@ -348,6 +352,7 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
       arriveIfAtGoal(r, t);
     }
     policyDirty = true;
+    // A robot left in place that still makes no progress is cleared at the next visit.
     if (episode.members.size > 0) queue.schedule(t + recoveryTicks, EventKind.Recover, EventKind.Recover, episodeId);
   };
 

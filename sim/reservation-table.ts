@@ -23,8 +23,11 @@ export class ReservationTable {
   /** Live path per robot: cells at consecutive ticks from pathStart. */
   readonly paths: (Int32Array | null)[];
   readonly pathStart: Int32Array;
-  /** Largest tick held by any live path (bounds the free-forever scan). */
-  private lastReservedTick = 0;
+  /**
+   * Per cell, the largest tick any path has reserved it for. Never lowered on release, so
+   * it over-estimates; it only bounds the free-forever scan (a performance shortcut).
+   */
+  private readonly lastTickOfCell: Int32Array;
   /** Bumped on every reserve and release, so callers can tell that nothing changed. */
   revision = 0;
 
@@ -39,6 +42,7 @@ export class ReservationTable {
     this.when = new Int32Array(this.horizon * cells).fill(-1);
     this.endRobot = new Int32Array(cells).fill(-1);
     this.endFrom = new Int32Array(cells);
+    this.lastTickOfCell = new Int32Array(cells).fill(-1);
     this.paths = new Array(robots).fill(null);
     this.pathStart = new Int32Array(robots);
   }
@@ -80,7 +84,8 @@ export class ReservationTable {
   isFreeFrom(cell: number, tick: number, self: number): boolean {
     const rester = this.endRobot[cell];
     if (rester >= 0 && rester !== self) return false;
-    for (let t = tick; t <= this.lastReservedTick; t++) {
+    const last = this.lastTickOfCell[cell];
+    for (let t = tick; t <= last; t++) {
       const slot = (t & this.mask) * this.cells + cell;
       if (this.when[slot] === t && this.who[slot] !== self) return false;
     }
@@ -145,17 +150,19 @@ export class ReservationTable {
   }
 
   private write(robot: number, path: Int32Array, start: number): void {
+    const lastTickOfCell = this.lastTickOfCell;
     for (let i = 0; i < path.length; i++) {
       const t = start + i;
-      const slot = (t & this.mask) * this.cells + path[i];
+      const cell = path[i];
+      const slot = (t & this.mask) * this.cells + cell;
       this.who[slot] = robot;
       this.when[slot] = t;
+      if (t > lastTickOfCell[cell]) lastTickOfCell[cell] = t;
     }
     const end = start + path.length - 1;
     const last = path[path.length - 1];
     this.endRobot[last] = robot;
     this.endFrom[last] = end;
-    if (end > this.lastReservedTick) this.lastReservedTick = end;
   }
 }
 
