@@ -27,7 +27,7 @@ export class ReservationTable {
    * Per cell, the largest tick any path has reserved it for. Never lowered on release, so
    * it over-estimates; it only bounds the free-forever scan (a performance shortcut).
    */
-  private readonly lastTickOfCell: Int32Array;
+  readonly lastTickOfCell: Int32Array;
   /** Bumped on every reserve and release, so callers can tell that nothing changed. */
   revision = 0;
 

@@ -11,6 +11,12 @@
  * that many ticks after arriving (handling at a station); `restForever` means nobody else
  * may use the goal cell at any later tick (the end of a token-passing path).
  *
+ * The heuristic also knows when the goal itself becomes available: before a search, one
+ * backward pass over the goal cell's reservations gives, for every tick k, the earliest
+ * tick >= k at which the goal condition holds; h(cell, t) = ready[t + dist(cell)] - t. It
+ * is admissible and consistent (ready is non-decreasing), and it stops the search from
+ * flooding space-time while a busy station is still taken.
+ *
  * Memory is reused across searches (typed arrays sized once, a stamp per (tick mod
  * horizon, cell) for the closed set). Cost is bounded by `maxExpansions`; a search that
  * exceeds it or runs past the reservation horizon fails and returns null.
@@ -39,6 +45,7 @@ export class SpaceTimeAStar {
   private heapKey: Float64Array;
   private heapSize = 0;
   private closed: Int32Array;
+  private ready = new Int32Array(256);
   private closedHorizon = 0;
   private searchId = 0;
   expansions = 0;
@@ -84,6 +91,37 @@ export class SpaceTimeAStar {
     const neighbors = layout.neighbors;
     const closed = this.closed;
     this.heapSize = 0;
+    // ready[k - startTick] = earliest tick >= k at which the goal condition holds, for k below
+    // startTick + span; past the goal's last reservation the goal is ready at once.
+    const lastReserved = table.lastTickOfCell[goal];
+    const span = Math.max(0, Math.min(horizon, lastReserved - startTick + 2));
+    if (this.ready.length < span + 1) this.ready = new Int32Array(2 * span + 2);
+    const ready = this.ready;
+    if (restForever) {
+      let lastOther = -1;
+      for (let t = lastReserved; t >= startTick; t--) {
+        if (!table.isFree(goal, t, robot)) {
+          lastOther = t;
+          break;
+        }
+      }
+      for (let k = 0; k < span; k++) ready[k] = Math.max(startTick + k, lastOther + 1);
+    } else {
+      // Walking back, `run` counts consecutive free ticks from k on (ticks past the span are free).
+      let run = holdTicks + 1;
+      let next = startTick + span;
+      for (let k = span - 1; k >= 0; k--) {
+        const t = startTick + k;
+        run = table.isFree(goal, t, robot) ? run + 1 : 0;
+        if (run >= holdTicks + 1) next = t;
+        ready[k] = next;
+      }
+    }
+    const heuristicAt = (cell: number, tick: number): number => {
+      const distance = heuristic[cell];
+      const k = tick + distance - startTick;
+      return k < span ? ready[k] - tick : distance;
+    };
     let nodes = 0;
     const push = (cell: number, tick: number, parent: number): void => {
       if (nodes >= this.capacity) this.grow();
@@ -92,7 +130,7 @@ export class SpaceTimeAStar {
       this.nodeParent[nodes] = parent;
       const g = tick - startTick;
       // f first, then deeper nodes first among equal f (fewer re-expansions).
-      this.heapPush(nodes, (g + heuristic[cell]) * 1048576 - g);
+      this.heapPush(nodes, (g + heuristicAt(cell, tick)) * 1048576 - g);
       nodes++;
     };
     // The goal cell is terminal: entering it starts handling (or the rest), so a path may
