@@ -58,6 +58,8 @@ export interface ReplicationRecord {
   policyCounters: Record<string, number>;
   /** Shelves at storage + on robots at the end (round trips); equals the storage count. */
   shelvesAccounted: number;
+  /** Shelves standing on their storage points at the end (round trips). */
+  shelvesAtStorage: number;
 }
 
 export interface ReplicationHooks {
@@ -559,6 +561,7 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     planningSeconds: planningMs / 1000,
     policyCounters: policy.counters?.() ?? {},
     shelvesAccounted: home + shelvesOnRobots,
+    shelvesAtStorage: home,
   };
 }
 
