@@ -30,6 +30,8 @@ export class ReservationTable {
   readonly lastTickOfCell: Int32Array;
   /** Bumped on every reserve and release, so callers can tell that nothing changed. */
   revision = 0;
+  /** The latest current tick seen; path entries before it are history and never written. */
+  private now = 0;
 
   constructor(
     readonly cells: number,
@@ -98,9 +100,15 @@ export class ReservationTable {
     return true;
   }
 
-  /** Reserves `path` (cells at ticks start, start+1, ...) for `robot` and a rest at its last cell; replaces its previous path. */
-  reserve(robot: number, path: Int32Array, start: number): void {
-    this.release(robot, start);
+  /**
+   * Reserves `path` (cells at ticks start, start+1, ...) for `robot` and a rest at its last
+   * cell; replaces its previous path. `now` (default `start`) is the current tick: entries
+   * before it are in the past and are not written, because their ring slots may already
+   * hold live reservations for `horizon` ticks later (a restored older path has start < now).
+   */
+  reserve(robot: number, path: Int32Array, start: number, now = start): void {
+    if (now > this.now) this.now = now;
+    this.release(robot, now);
     this.ensureHorizon(path.length + 1);
     this.write(robot, path, start);
     this.revision++;
@@ -151,7 +159,7 @@ export class ReservationTable {
 
   private write(robot: number, path: Int32Array, start: number): void {
     const lastTickOfCell = this.lastTickOfCell;
-    for (let i = 0; i < path.length; i++) {
+    for (let i = Math.max(0, this.now - start); i < path.length; i++) {
       const t = start + i;
       const cell = path[i];
       const slot = (t & this.mask) * this.cells + cell;

@@ -195,7 +195,14 @@ export class TokenPassing implements Policy {
       const oldStart = table.pathStart[other];
       const oldEnd = this.pathEnd[other];
       const otherCell = world.robotCell[other];
-      // Tentatively stop the other robot where it stands, then plan this one.
+      // Tentatively stop the other robot where it stands, then plan this one. It may stop
+      // only where no other robot's reserved path or rest comes later (it could be crossing
+      // the cell where another robot will end its path); otherwise no swap with it.
+      table.release(other, tick);
+      if (!table.isFreeFrom(otherCell, tick, other)) {
+        table.reserve(other, oldPath, oldStart, tick);
+        continue;
+      }
       table.rest(other, otherCell, tick);
       table.release(robot, tick);
       const plan = planTask(this.planner, robot, cell, tick, task);
@@ -209,7 +216,7 @@ export class TokenPassing implements Policy {
         return other;
       }
       table.rest(robot, cell, tick);
-      table.reserve(other, oldPath, oldStart);
+      table.reserve(other, oldPath, oldStart, tick);
       this.pathEnd[other] = oldEnd;
     }
     return -1;
