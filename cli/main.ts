@@ -12,9 +12,9 @@ program
   .name('fleetwright')
   .description('Simulate robot fleets doing lifelong pickup-and-delivery work on a grid floor: size fleets and compare dispatch policies with confidence intervals.')
   .version('0.1.0')
-  .showHelpAfterError('(run with --help for usage)')
   .exitOverride()
-  .configureOutput({ writeErr: (text) => process.stderr.write(text.startsWith('error:') ? `fleetwright: ${text}` : text) });
+  // One line per error (DESIGN §3): commander's message, its "did you mean" hint and the usage pointer joined.
+  .configureOutput({ outputError: (text, write) => write(`fleetwright: ${text.trim().replace(/\s*\n\s*/g, ' ')} (run with --help for usage)\n`) });
 
 /** Options shared by commands that run a scenario; each overrides the scenario field of the same meaning. */
 function addRunOptions(command: Command): Command {
@@ -44,7 +44,12 @@ interface RunOptionValues {
 
 /** Option strings to overrides; the loader validates them and names the option in errors. */
 export function overridesFrom(options: RunOptionValues): ScenarioOverrides {
-  const number = (value: string | undefined): number | undefined => (value === undefined ? undefined : value.trim() === '' ? NaN : Number(value));
+  // Text that is not a number is passed through as text so the loader's message quotes what was typed.
+  const number = (value: string | undefined): number | undefined => {
+    if (value === undefined) return undefined;
+    const parsed = value.trim() === '' ? NaN : Number(value);
+    return (Number.isNaN(parsed) ? value : parsed) as number;
+  };
   return {
     robots: number(options.robots),
     hours: number(options.hours),

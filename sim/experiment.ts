@@ -9,9 +9,10 @@ import { DistanceTables } from './distance-table.ts';
 import { runReplication, type ReplicationHooks, type ReplicationRecord, type SimulationSetup } from './engine.ts';
 import { findPolicy, parsePolicyOptions } from '../policies/registry.ts';
 
-export function prepareSetup(scenario: Scenario): SimulationSetup {
+/** `policyField` names where the policy came from in error messages (a file field or `--policy`). */
+export function prepareSetup(scenario: Scenario, policyField = `${scenario.sourcePath ?? 'scenario'}: policy.name`): SimulationSetup {
   const layout = parseLayout(scenario.layoutText);
-  const policy = findPolicy(scenario.policy.name);
+  const policy = findPolicy(scenario.policy.name, policyField);
   const policyOptions = parsePolicyOptions(policy, scenario.policy.options);
   return { scenario, layout, distances: new DistanceTables(layout), policy, policyOptions };
 }

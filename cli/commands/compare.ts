@@ -17,7 +17,7 @@ export async function compareCommand(scenarioPath: string, policyList: string, j
   const duplicate = names.find((n, i) => names.indexOf(n) !== i);
   if (duplicate) throw new InputError(`--policies: got ${JSON.stringify(duplicate)} twice, expected distinct policy names`);
   // Load and validate every policy's scenario before running anything.
-  const setups = names.map((name) => prepareSetup(loadScenarioFile(scenarioPath, { ...overrides, policy: name })));
+  const setups = names.map((name) => prepareSetup(loadScenarioFile(scenarioPath, { ...overrides, policy: name }), '--policies'));
   const n = setups[0].scenario.run.replications;
   if (n < 2) throw new InputError(`--reps: got ${n}, expected at least 2 replications for paired intervals`);
   if (outDirectory !== undefined) ensureDirectory(outDirectory);

@@ -13,7 +13,7 @@ import { RunError } from '../../sim/errors.ts';
 export async function runCommand(scenarioPath: string, json: boolean, outDirectory: string | undefined, overrides: ScenarioOverrides): Promise<void> {
   const scenario = loadScenarioFile(scenarioPath, overrides);
   // Validate everything (policy name and options, output folder) before spending time.
-  const setup = prepareSetup(scenario);
+  const setup = prepareSetup(scenario, overrides.policy !== undefined ? '--policy' : undefined);
   if (outDirectory !== undefined) ensureDirectory(outDirectory);
   const started = performance.now();
   const n = scenario.run.replications;
