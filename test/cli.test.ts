@@ -194,7 +194,7 @@ const badInputCases: BadInputCase[] = [
   { name: 'fleet.robots more than passable cells', scenario: smallHallWith('robots: 2', 'robots: 99'), args: runScenario(), message: /fleet\.robots \(line 11\): got 99, expected at most 21/ },
   { name: 'fleet.robots as text', scenario: smallHallWith('robots: 2', 'robots: ten'), args: runScenario(), message: /fleet\.robots \(line 11\): got "ten"/ },
   { name: '--rate -5', args: runHall('--rate', '-5'), message: /--rate: got -5, expected tasks per hour > 0/ },
-  { name: '--rate abc', args: runHall('--rate', 'abc'), message: /--rate: got NaN.*, expected tasks per hour > 0/ },
+  { name: '--rate abc', args: runHall('--rate', 'abc'), message: /--rate: got "abc", expected tasks per hour > 0/ },
   { name: 'tasksPerHour .inf', scenario: smallHallWith('tasksPerHour: 300', 'tasksPerHour: .inf'), args: runScenario(), message: /demand\.tasksPerHour \(line 12\): got Infinity/ },
   { name: 'tasksPerHour .nan', scenario: smallHallWith('tasksPerHour: 300', 'tasksPerHour: .nan'), args: runScenario(), message: /demand\.tasksPerHour \(line 12\): got NaN/ },
   { name: '--policy nope', args: runHall('--policy', 'nope'), message: /got "nope", expected one of token-passing/ },
