@@ -1,0 +1,84 @@
+/**
+ * `npm run bench`: engine and policy throughput in agent-steps per wall second (one robot
+ * advanced by one tick = one agent-step), the planning share of wall time, and the
+ * assignment solver against munkres-js on the same inputs. Never part of `npm test`.
+ *
+ *   npm run bench                 table on stdout
+ *   npm run bench -- --json       one JSON array of rows
+ *   npm run bench -- --quick      skip the slow rows (munkres-js at 1000, pibt at 1,000 robots)
+ *   npm run bench -- --only NAME  only rows whose name starts with NAME (engine, policy, pibt, assignment)
+ */
+import { loadScenarioFile } from '../scenarios/load.ts';
+import { prepareSetup } from '../sim/experiment.ts';
+import { runReplication } from '../sim/engine.ts';
+import { policies } from '../policies/registry.ts';
+import type { Scenario } from '../scenarios/scenario.ts';
+
+const args = process.argv.slice(2);
+const json = args.includes('--json');
+const quick = args.includes('--quick');
+const onlyIndex = args.indexOf('--only');
+const only = onlyIndex >= 0 ? args[onlyIndex + 1] : null;
+const wanted = (name: string) => only === null || name.startsWith(only);
+
+type Row = Record<string, string | number | boolean>;
+const rows: Row[] = [];
+const log = (text: string) => {
+  if (!json) process.stderr.write(`${text}\n`);
+};
+
+function measure(name: string, scenario: Scenario): Row {
+  const setup = prepareSetup(scenario);
+  const record = runReplication(setup, 0);
+  const row: Row = {
+    name,
+    policy: scenario.policy.name,
+    robots: scenario.fleet.robots,
+    simulatedHours: scenario.run.hours,
+    agentSteps: record.agentSteps,
+    wallSeconds: Number(record.wallSeconds.toFixed(3)),
+    agentStepsPerSecond: Math.round(record.agentSteps / record.wallSeconds),
+    planningShare: Number((record.planningSeconds / record.wallSeconds).toFixed(3)),
+    realTimeFactor: Math.round((scenario.run.hours * 3600) / record.wallSeconds),
+    delivered: record.delivered,
+    collisions: record.collisions,
+  };
+  log(`${name} ${scenario.policy.name} ${scenario.fleet.robots} robots: ${row.agentStepsPerSecond} agent-steps/s`);
+  return row;
+}
+
+/** The demo hall under saturated demand: every robot always has work, the hardest case for planners. */
+function demo(policy: string, robots: number, hours: number): Scenario {
+  const scenario = loadScenarioFile('scenarios/demo-sortation.yaml', { policy, robots, hours, replications: 1 });
+  return { ...scenario, demand: { kind: 'saturated', mode: 'delivery', pickups: { kind: 'uniform' }, drops: { skew: 0.6, kind: 'zipf' } } };
+}
+
+if (wanted('engine')) {
+  for (const robots of [10, 20, 40]) rows.push(measure('engine', demo('token-passing', robots, 8)));
+}
+if (wanted('policy')) {
+  for (const factory of policies) {
+    for (const robots of [40, 100, 200]) {
+      // The demo hall has 38 parking spots: above that the floor is not well-formed and
+      // robots start in the aisles, which is exactly the stress this row measures.
+      rows.push(measure('policy', demo(factory.name, robots, 2)));
+    }
+  }
+}
+if (wanted('pibt') && !quick && policies.some((p) => p.name === 'pibt')) {
+  const { benchPibt } = await import('./pibt.ts');
+  rows.push((await benchPibt()) as unknown as Row);
+}
+if (wanted('assignment')) {
+  const { benchAssignment } = await import('./assignment.ts');
+  for (const row of await benchAssignment(quick ? [200, 500] : [200, 500, 1000])) rows.push(row as unknown as Row);
+}
+
+if (json) {
+  process.stdout.write(`${JSON.stringify(rows, null, 2)}\n`);
+} else {
+  const columns = [...new Set(rows.flatMap((r) => Object.keys(r)))];
+  const table = [columns, ...rows.map((r) => columns.map((c) => (r[c] === undefined ? '' : String(r[c]))))];
+  const widths = columns.map((_, i) => Math.max(...table.map((r) => r[i].length)));
+  for (const r of table) process.stdout.write(`${r.map((v, i) => v.padStart(widths[i])).join('  ')}\n`);
+}

@@ -1,0 +1,13 @@
+import type { PolicyFactory } from '../../sim/policy.ts';
+import { Pibt, pibtOptionDocs, pibtOptions, type PibtOptions } from './pibt.ts';
+
+export const pibt: PolicyFactory<PibtOptions> = {
+  name: 'pibt',
+  summary: 'reactive: one move per robot per tick by priority inheritance with backtracking; nearest-robot task assignment; scales to thousands of robots',
+  source: 'Okumura, Machida, Défago, Tamura, IJCAI 2019 / AIJ 2022',
+  // Reactive: nothing is reserved beyond the next tick, so the engine may clear stalled robots.
+  allowsRecovery: true,
+  options: pibtOptions as never,
+  optionDocs: pibtOptionDocs,
+  create: (context, options) => new Pibt(context, options),
+};

@@ -1,0 +1,518 @@
+/**
+ * PIBT, Priority Inheritance with Backtracking (Okumura, Machida, Défago, Tamura, "Priority
+ * Inheritance with Backtracking for Iterative Multi-agent Path Finding", IJCAI 2019; AIJ
+ * 2022), applied to lifelong pickup and delivery. Reactive: it decides one move per robot
+ * per tick and reserves nothing beyond t + 1.
+ *
+ * Goals. A robot holding a task heads for its task goal (world.goalOf). Open tasks go to
+ * idle robots by a simple nearest rule, run whenever the open list or a robot's task
+ * changes (world.version): when idle robots are at least as many as open tasks, each open
+ * task in release order takes the nearest idle robot (grid distance to the pickup, ties by
+ * robot index); otherwise (a backlog) each idle robot in index order takes the nearest open
+ * task (ties: the oldest). Under a sustained backlog far pickups can wait long; that is the
+ * rule's known cost. One run of the rule costs O(open tasks x idle robots) when tasks
+ * choose and O(open tasks + idle robots x pickup cells) when robots choose. An idle robot
+ * claims the nearest unclaimed parking spot (breadth-first search from its cell) and heads
+ * there; with no spot free it rests where it stands.
+ *
+ * Priorities (paper, §3): ticks elapsed since the robot's goal last changed plus a unique
+ * fraction in [0, 1) drawn once from the policy's random stream; a robot whose goal
+ * changes (it reached the old one) drops back. Robots holding a task outrank idle robots
+ * heading for parking, which outrank resting robots; resting robots have no goal and are
+ * only moved when pushed. Handling robots cannot move: their cells are reserved first.
+ * Because a goal change always sets the newest start tick, the order by priority is kept
+ * incrementally (robots whose goal changed move to the back), O(robots) per tick.
+ *
+ * One tick (paper, Algorithm 1): for every undecided robot in priority order call
+ * PIBT(a, none). PIBT(a, b) orders a's neighbours and its own cell by distance to a's goal
+ * (ties: cells empty now first, then a seeded hash of tick, robot and cell), skips cells
+ * reserved for t + 1 and the cell of the parent b (no swap), reserves the first other one,
+ * and, when a lower-priority robot c without a decided move stands there, lets c inherit
+ * a's priority by calling PIBT(c, a); if that fails a tries its next cell, and if every
+ * cell fails a stays and reports failure to its own parent. No two robots reserve one
+ * cell and no robot enters the cell of a robot entering its own, so every tick is free of
+ * vertex and swap collisions by construction (the engine's validator checks anyway).
+ *
+ * Inheritance chains are walked with an explicit stack, not recursion: a chain can hold
+ * every robot (one frame each), so recursion depth would grow with the fleet. Each robot
+ * is on the stack at most once per tick and tries at most 5 cells, so a tick is O(robots * 5)
+ * plus the assignment work. Memory: parallel typed arrays by robot and by cell.
+ *
+ * PIBT is complete for the highest-priority robot only on graphs where every two
+ * neighbouring cells lie on a cycle; elsewhere robots can livelock or stall. The policy
+ * does not hide that: it allows the engine's modelled recovery (allowsRecovery) and the
+ * engine's detector reports the episodes.
+ */
+import { z } from 'zod';
+import type { Policy, PolicyContext, PolicyOptionDoc } from '../../sim/policy.ts';
+import { unreachable } from '../../sim/distance-table.ts';
+import { Phase, isHandling } from '../../sim/world.ts';
+
+export const pibtOptions = z.object({}).strict();
+export type PibtOptions = z.infer<typeof pibtOptions>;
+export const pibtOptionDocs: PolicyOptionDoc[] = [];
+
+/** Scheduling classes, in the order they plan; handling robots are fixed before anyone plans. */
+const Band = { Task: 0, ToParking: 1, Resting: 2, Handling: 3 } as const;
+
+/** Candidate cells per robot: four neighbours and its own cell. */
+const slots = 5;
+
+export class Pibt implements Policy {
+  private readonly robots: number;
+  /** Cell each robot occupies at t + 1, or -1 while undecided. */
+  private readonly next: Int32Array;
+  /** Robot that has reserved each cell for t + 1, or -1. */
+  private readonly reservedBy: Int32Array;
+  private readonly parent: Int32Array;
+  private readonly candidates: Int32Array;
+  private readonly candidateCount: Uint8Array;
+  private readonly cursor: Uint8Array;
+  private readonly stack: Int32Array;
+  private readonly sortKey: Int32Array;
+
+  /** The goal each robot pursued at the last step (task goal or parking claim), -1 for none. */
+  private readonly goal: Int32Array;
+  /** Distance table of each robot's goal, fetched on first use (skips the cache lookup in the hot loop). */
+  private readonly goalTable: (Int32Array | null)[];
+  private readonly band: Uint8Array;
+  /** The unique fractional part of each robot's priority. */
+  private readonly tieBreak: Float64Array;
+  /**
+   * Robots by priority within any band: by the tick their goal last changed, oldest first,
+   * then by tie-breaker, highest first; the same order as elapsed ticks + tie-breaker.
+   */
+  private byAge: Int32Array;
+  private byAgeSpare: Int32Array;
+  private readonly changed: number[] = [];
+  private readonly changedMark: Uint8Array;
+
+  private readonly parkingOf: Int32Array;
+  private readonly parkingOwner: Int32Array;
+  /** Unclaimed parking spots; a robot searches only while there are some. */
+  private freeParking: number;
+  /** Bumped when a parking claim is released; a robot whose search failed retries only then. */
+  private parkingRevision = 0;
+  private readonly parkingTriedAt: Float64Array;
+  private readonly searchQueue: Int32Array;
+  private readonly searchStamp: Int32Array;
+  private searchId = 0;
+  private readonly isParking: Uint8Array;
+
+  private readonly idle: number[] = [];
+  private assignedVersion = -1;
+  private readonly hashSeed: number;
+
+  private inheritances = 0;
+  private failedCalls = 0;
+  private assignments = 0;
+  private parkingClaims = 0;
+  private relocations = 0;
+
+  constructor(
+    private readonly context: PolicyContext,
+    _options: PibtOptions,
+  ) {
+    const { world, layout } = context;
+    const robots = world.robotCount;
+    this.robots = robots;
+    this.next = new Int32Array(robots).fill(-1);
+    this.reservedBy = new Int32Array(layout.cellCount).fill(-1);
+    this.parent = new Int32Array(robots).fill(-1);
+    this.candidates = new Int32Array(robots * slots);
+    this.candidateCount = new Uint8Array(robots);
+    this.cursor = new Uint8Array(robots);
+    this.stack = new Int32Array(robots);
+    this.sortKey = new Int32Array(slots);
+    this.goal = new Int32Array(robots).fill(-1);
+    this.goalTable = new Array<Int32Array | null>(robots).fill(null);
+    this.band = new Uint8Array(robots);
+    this.changedMark = new Uint8Array(robots);
+    this.parkingOf = new Int32Array(robots).fill(-1);
+    this.parkingOwner = new Int32Array(layout.cellCount).fill(-1);
+    this.parkingTriedAt = new Float64Array(robots).fill(-1);
+    this.searchQueue = new Int32Array(layout.cellCount);
+    this.searchStamp = new Int32Array(layout.cellCount);
+    this.isParking = new Uint8Array(layout.cellCount);
+    for (const c of layout.parking) this.isParking[c] = 1;
+    this.freeParking = layout.parking.length;
+
+    // Unique tie-breakers: a seeded random permutation of 0..robots-1, scaled into [0, 1).
+    const permutation = new Int32Array(robots);
+    for (let r = 0; r < robots; r++) permutation[r] = r;
+    for (let i = robots - 1; i > 0; i--) {
+      const j = Math.floor(context.random() * (i + 1));
+      const swap = permutation[i];
+      permutation[i] = permutation[j];
+      permutation[j] = swap;
+    }
+    this.tieBreak = new Float64Array(robots);
+    for (let r = 0; r < robots; r++) this.tieBreak[r] = permutation[r] / robots;
+    this.hashSeed = Math.floor(context.random() * 0x7fffffff);
+
+    // Start order: all goals "changed" at tick 0, higher tie-breaker first.
+    this.byAge = new Int32Array(robots);
+    for (let r = 0; r < robots; r++) this.byAge[robots - 1 - permutation[r]] = r;
+    this.byAgeSpare = new Int32Array(robots);
+
+    // Robots that start on parking keep that spot.
+    for (let r = 0; r < robots; r++) {
+      const cell = world.robotCell[r];
+      if (this.isParking[cell] && this.parkingOwner[cell] < 0) {
+        this.parkingOwner[cell] = r;
+        this.parkingOf[r] = cell;
+        this.freeParking--;
+        this.goal[r] = cell;
+      }
+    }
+  }
+
+  step(tick: number, moves: Int32Array): number {
+    const { world } = this.context;
+    const robots = this.robots;
+    if (world.version !== this.assignedVersion) {
+      this.assignOpenTasks();
+      this.assignedVersion = world.version;
+    }
+    this.updateGoals();
+
+    // Clear last tick's reservations (every reserved cell is some robot's next cell).
+    const next = this.next;
+    const reservedBy = this.reservedBy;
+    for (let r = 0; r < robots; r++) {
+      if (next[r] >= 0) reservedBy[next[r]] = -1;
+      next[r] = -1;
+    }
+    const cells = world.robotCell;
+    const band = this.band;
+    for (let r = 0; r < robots; r++) {
+      if (band[r] === Band.Handling) {
+        next[r] = cells[r];
+        reservedBy[cells[r]] = r;
+      }
+    }
+    const order = this.byAge;
+    for (let i = 0; i < robots; i++) {
+      const r = order[i];
+      if (band[r] === Band.Task && next[r] < 0) this.plan(r, tick);
+    }
+    for (let i = 0; i < robots; i++) {
+      const r = order[i];
+      if (band[r] === Band.ToParking && next[r] < 0) this.plan(r, tick);
+    }
+    // Resting robots not pushed by now stay: staying is their first choice and always free,
+    // since a robot that wanted the cell would have pushed them.
+    for (let r = 0; r < robots; r++) {
+      if (next[r] < 0) {
+        next[r] = cells[r];
+        reservedBy[cells[r]] = r;
+      }
+    }
+
+    let busy = false;
+    for (let r = 0; r < robots; r++) {
+      moves[r] = next[r];
+      if (band[r] === Band.Task || band[r] === Band.ToParking || next[r] !== cells[r]) busy = true;
+    }
+    return busy ? tick + 1 : Infinity;
+  }
+
+  onRelocated(_robot: number, _tick: number): void {
+    // The robot keeps its task, goal and priority; it only stands somewhere else now.
+    this.relocations++;
+  }
+
+  counters(): Record<string, number> {
+    return {
+      priorityInheritances: this.inheritances,
+      failedCalls: this.failedCalls,
+      assignments: this.assignments,
+      parkingClaims: this.parkingClaims,
+      relocations: this.relocations,
+    };
+  }
+
+  // Assignment ---------------------------------------------------------------------------
+
+  /** The nearest rule described in the header. */
+  private assignOpenTasks(): void {
+    const { world, distances } = this.context;
+    const open = world.openTasks;
+    if (open.length === 0) return;
+    const idle = this.idle;
+    idle.length = 0;
+    for (let r = 0; r < this.robots; r++) if (world.robotPhase[r] === Phase.Idle && world.robotTask[r] < 0) idle.push(r);
+    if (idle.length === 0) return;
+
+    if (idle.length >= open.length) {
+      // Tasks choose robots. Saturated demand appends a task on every assignment, so the
+      // live list is walked; an assigned task leaves it at index i.
+      let i = 0;
+      while (i < open.length && idle.length > 0) {
+        const task = open[i];
+        const table = distances.to(world.taskPickup[task]);
+        let best = -1;
+        let bestDistance = unreachable;
+        for (let k = 0; k < idle.length; k++) {
+          const r = idle[k];
+          const d = table[world.robotCell[r]];
+          if (d < bestDistance || (d === bestDistance && best >= 0 && r < idle[best])) {
+            bestDistance = d;
+            best = k;
+          }
+        }
+        if (best < 0) {
+          i++;
+          continue;
+        }
+        const robot = idle[best];
+        idle[best] = idle[idle.length - 1];
+        idle.pop();
+        this.give(robot, task);
+      }
+    } else {
+      // Robots choose tasks, in robot order. Open tasks are grouped by pickup cell, oldest
+      // first, so a robot compares pickup cells (few) rather than tasks (many).
+      const groups = new Map<number, number[]>();
+      for (const task of open) {
+        const pickup = world.taskPickup[task];
+        const group = groups.get(pickup);
+        if (group) group.push(task);
+        else groups.set(pickup, [task]);
+      }
+      const pickups = [...groups.keys()];
+      const tables = pickups.map((c) => distances.to(c));
+      const heads = new Int32Array(pickups.length);
+      const older = (a: number, b: number) => world.taskRelease[a] < world.taskRelease[b] || (world.taskRelease[a] === world.taskRelease[b] && a < b);
+      for (const robot of idle) {
+        const cell = world.robotCell[robot];
+        let best = -1;
+        let bestDistance = unreachable;
+        for (let k = 0; k < pickups.length; k++) {
+          const group = groups.get(pickups[k])!;
+          if (heads[k] >= group.length) continue;
+          const d = tables[k][cell];
+          if (d < bestDistance || (d === bestDistance && best >= 0 && older(group[heads[k]], groups.get(pickups[best])![heads[best]]))) {
+            bestDistance = d;
+            best = k;
+          }
+        }
+        if (best < 0) continue;
+        const group = groups.get(pickups[best])!;
+        this.give(robot, group[heads[best]++]);
+      }
+    }
+  }
+
+  private give(robot: number, task: number): void {
+    this.releaseParking(robot);
+    this.context.world.assign(robot, task);
+    this.assignments++;
+  }
+
+  private releaseParking(robot: number): void {
+    const spot = this.parkingOf[robot];
+    if (spot < 0) return;
+    this.parkingOwner[spot] = -1;
+    this.parkingOf[robot] = -1;
+    this.freeParking++;
+    this.parkingRevision++;
+  }
+
+  /** Nearest unclaimed parking spot by breadth-first search from `from`, or -1. */
+  private nearestFreeParking(from: number): number {
+    const { layout } = this.context;
+    const neighbors = layout.neighbors;
+    const queue = this.searchQueue;
+    const stamp = this.searchStamp;
+    const id = ++this.searchId;
+    let head = 0;
+    let tail = 0;
+    queue[tail++] = from;
+    stamp[from] = id;
+    while (head < tail) {
+      const c = queue[head++];
+      if (this.isParking[c] && this.parkingOwner[c] < 0) return c;
+      for (let d = 0; d < 4; d++) {
+        const n = neighbors[c * 4 + d];
+        if (n >= 0 && stamp[n] !== id) {
+          stamp[n] = id;
+          queue[tail++] = n;
+        }
+      }
+    }
+    return -1;
+  }
+
+  // Goals and priorities -----------------------------------------------------------------
+
+  private updateGoals(): void {
+    const { world } = this.context;
+    const robots = this.robots;
+    const changed = this.changed;
+    changed.length = 0;
+    for (let r = 0; r < robots; r++) {
+      const phase = world.robotPhase[r];
+      let goal: number;
+      if (isHandling(phase)) {
+        this.band[r] = Band.Handling;
+        goal = -1;
+      } else if (phase !== Phase.Idle) {
+        this.releaseParking(r);
+        this.band[r] = Band.Task;
+        goal = world.goalOf(r);
+      } else {
+        if (this.parkingOf[r] < 0 && this.freeParking > 0 && this.parkingTriedAt[r] !== this.parkingRevision) {
+          const spot = this.nearestFreeParking(world.robotCell[r]);
+          if (spot >= 0) {
+            this.parkingOwner[spot] = r;
+            this.parkingOf[r] = spot;
+            this.freeParking--;
+            this.parkingClaims++;
+          } else {
+            this.parkingTriedAt[r] = this.parkingRevision;
+          }
+        }
+        goal = this.parkingOf[r];
+        this.band[r] = goal >= 0 && goal !== world.robotCell[r] ? Band.ToParking : Band.Resting;
+      }
+      if (goal !== this.goal[r]) {
+        this.goal[r] = goal;
+        this.goalTable[r] = null;
+        changed.push(r);
+      }
+    }
+    if (changed.length === 0) return;
+    // Robots whose goal changed now have the newest start tick: keep the others in order
+    // and append these, higher tie-breaker first.
+    const tieBreak = this.tieBreak;
+    changed.sort((a, b) => tieBreak[b] - tieBreak[a]);
+    const mark = this.changedMark;
+    for (const r of changed) mark[r] = 1;
+    const order = this.byAge;
+    const spare = this.byAgeSpare;
+    let k = 0;
+    for (let i = 0; i < robots; i++) {
+      const r = order[i];
+      if (!mark[r]) spare[k++] = r;
+    }
+    for (const r of changed) {
+      spare[k++] = r;
+      mark[r] = 0;
+    }
+    this.byAgeSpare = order;
+    this.byAge = spare;
+  }
+
+  // PIBT ---------------------------------------------------------------------------------
+
+  /**
+   * PIBT(root, none) with an explicit stack. Frame = a robot; its parent, candidate list and
+   * cursor live in per-robot arrays. `result` carries a finished child's answer to its parent.
+   */
+  private plan(root: number, tick: number): void {
+    const cells = this.context.world.robotCell;
+    const occupant = this.context.world.occupant;
+    const next = this.next;
+    const reservedBy = this.reservedBy;
+    const parent = this.parent;
+    const candidates = this.candidates;
+    const candidateCount = this.candidateCount;
+    const cursor = this.cursor;
+    const stack = this.stack;
+    let depth = 0;
+    this.push(root, -1, tick);
+    stack[depth++] = root;
+    // 0: no answer pending; 1: the child moved; 2: the child could not move.
+    let result = 0;
+    while (depth > 0) {
+      const a = stack[depth - 1];
+      if (result === 1) {
+        depth--;
+        continue;
+      }
+      if (result === 2) {
+        cursor[a]++;
+        result = 0;
+      }
+      const p = parent[a];
+      const parentCell = p >= 0 ? cells[p] : -1;
+      let descended = false;
+      let moved = false;
+      while (cursor[a] < candidateCount[a]) {
+        const v = candidates[a * slots + cursor[a]];
+        if (reservedBy[v] >= 0 || v === parentCell) {
+          cursor[a]++;
+          continue;
+        }
+        next[a] = v;
+        reservedBy[v] = a;
+        const c = occupant[v];
+        if (c >= 0 && c !== a && next[c] < 0) {
+          // c inherits a's priority.
+          this.inheritances++;
+          this.push(c, a, tick);
+          stack[depth++] = c;
+          descended = true;
+        } else {
+          moved = true;
+        }
+        break;
+      }
+      if (descended) continue;
+      depth--;
+      if (moved) {
+        result = 1;
+      } else {
+        // Every cell failed: stay. The own cell is free for a root (anyone wanting it would
+        // have pushed this robot) and held only by the parent otherwise, which moves on.
+        next[a] = cells[a];
+        reservedBy[cells[a]] = a;
+        this.failedCalls++;
+        result = 2;
+      }
+    }
+  }
+
+  /** Prepares robot r's frame: its parent and its candidate cells, best first. */
+  private push(r: number, parentRobot: number, tick: number): void {
+    const world = this.context.world;
+    const neighbors = this.context.layout.neighbors;
+    this.parent[r] = parentRobot;
+    this.cursor[r] = 0;
+    const cell = world.robotCell[r];
+    const goal = this.goal[r];
+    let table = this.goalTable[r];
+    if (table === null && goal >= 0) table = this.goalTable[r] = this.context.distances.to(goal);
+    const occupant = world.occupant;
+    const candidates = this.candidates;
+    const base = r * slots;
+    const keys = this.sortKey;
+    // Neighbours differ from the own cell's distance by exactly one, so the distance part of
+    // the key is 0 (closer), 1 (stay) or 2 (farther); without a goal staying comes first.
+    const here = table === null ? 0 : table[cell];
+    let mix = this.hashSeed ^ Math.imul(tick, 0x9e3779b1);
+    mix = Math.imul(mix ^ r, 0x85ebca6b);
+    let count = 0;
+    for (let d = -1; d < 4; d++) {
+      const v = d < 0 ? cell : neighbors[cell * 4 + d];
+      if (v < 0) continue;
+      // Distance first, then cells empty now, then a seeded hash of (tick, robot, cell).
+      const step = v === cell ? 1 : table === null ? 2 : table[v] - here + 1;
+      const busy = v !== cell && occupant[v] >= 0 ? 1 : 0;
+      let h = Math.imul(mix ^ (mix >>> 13) ^ v, 0xc2b2ae35);
+      h ^= h >>> 16;
+      const key = step * 4096 + busy * 2048 + (h & 2047);
+      // Insertion into the sorted prefix (at most 5 entries).
+      let i = count++;
+      while (i > 0 && keys[i - 1] > key) {
+        keys[i] = keys[i - 1];
+        candidates[base + i] = candidates[base + i - 1];
+        i--;
+      }
+      keys[i] = key;
+      candidates[base + i] = v;
+    }
+    this.candidateCount[r] = count;
+  }
+}
