@@ -7,8 +7,10 @@ import { InputError } from '../sim/errors.ts';
 import { tokenPassing } from './token-passing/index.ts';
 import { tokenPassingSwaps } from './token-passing-swaps/index.ts';
 import { greedyReactive } from './greedy-reactive/index.ts';
+import { pibt } from './pibt/index.ts';
+import { flowBatch } from './flow-batch/index.ts';
 
-export const policies: readonly PolicyFactory<any>[] = [tokenPassing, tokenPassingSwaps, greedyReactive];
+export const policies: readonly PolicyFactory<any>[] = [tokenPassing, tokenPassingSwaps, flowBatch, greedyReactive, pibt];
 
 export function policyNames(): string[] {
   return policies.map((p) => p.name);

@@ -9,23 +9,24 @@
  * Cost of robot r for task k, in cells:
  *   distance(cell of r, pickup of k) - ageWeight * (seconds task k has waited)
  * The distance is the true grid distance (a BFS table). The ageing term is the same for
- * every robot, so it never changes which robot serves a task; it changes which tasks are
- * served when tasks outnumber robots, and it grows without bound, so a task far from every
- * robot eventually costs less than any task released after it (by more than the largest
- * distance in the hall once it has waited maxDistance / ageWeight seconds longer) and is
- * served: no task waits forever while robots keep becoming free.
+ * every robot, so it never changes how the chosen tasks are matched to robots; it changes
+ * which tasks are chosen when tasks outnumber robots. It grows without bound: once a task
+ * has waited (largest distance in the hall) / ageWeight seconds longer than another, it
+ * costs less for every robot, so a task far from every robot is served after finitely many
+ * younger ones (the oldest-first candidate cap keeps it in the matrix): no task waits
+ * forever while robots keep becoming free.
  *
- * Candidates (the columns), oldest first, at most `maxTasks`:
- *  - a task with an endpoint (pickup, drop, return) that is the end of the path of a robot
- *    that is not free is skipped: that robot rests there, and a path ending in a rest must
- *    never be crossed (token passing's rule, Ma et al. AAMAS 2017);
- *  - tasks of one batch must not block each other: a task is skipped when its end cell
- *    (drop, or return for a round trip) is an endpoint of an older candidate, or one of its
- *    endpoints is the end cell of an older candidate. The younger task waits one epoch.
- * Pairs forbidden by cost FORBIDDEN_COST: the pickup is unreachable from the robot, or an
- * endpoint of the task is where another free robot currently rests. The solver then
- * maximises the number of allowed pairs first and minimises their cost second; forbidden
- * pairs are dropped from the result.
+ * Candidates (the columns): the open tasks, oldest first, at most `maxTasks`, skipping a
+ * task with an endpoint (pickup, drop, return) that is the end of the path of a robot that
+ * is not free: that robot rests there, and a path ending in a rest must never be crossed
+ * (token passing's rule, Ma et al. AAMAS 2017). Pairs forbidden by cost FORBIDDEN_COST: the
+ * pickup is unreachable from the robot, or an endpoint of the task is where another free
+ * robot rests. The solver then maximises the number of allowed pairs first and minimises
+ * their cost second; forbidden pairs are dropped from the result.
+ *
+ * Two chosen tasks may end on the same cell (two parcels for one chute); the caller plans
+ * the pairs in priority order and sends a robot whose task became blocked by a rest into
+ * another round (see flow-batch.ts).
  *
  * Complexity: O(free x candidates) to build the matrix plus the solver's
  * O(min^2 * max) worst case, min and max the smaller and larger side.
@@ -53,8 +54,6 @@ export interface EpochAssignmentRequest {
 export interface EpochPair {
   robot: number;
   task: number;
-  /** Grid distance from the robot to the task's pickup, cells. */
-  distance: number;
   /** Assignment cost: distance minus the ageing credit, cells. */
   cost: number;
 }
@@ -66,20 +65,11 @@ export interface EpochAssignment {
   candidates: number;
 }
 
-/**
- * Reusable scratch memory for assignEpoch on one floor: per-cell stamps for the candidate
- * rules and a per-robot free mark, sized once (a deliberate allocation shortcut; an epoch
- * runs every few seconds of simulated time).
- */
+/** Dispatches one epoch; keeps a per-robot scratch mark sized once. */
 export class EpochAssigner {
-  private readonly endStamp: Int32Array;
-  private readonly endpointStamp: Int32Array;
   private readonly isFree: Uint8Array;
-  private stamp = 0;
 
-  constructor(cellCount: number, robotCount: number) {
-    this.endStamp = new Int32Array(cellCount);
-    this.endpointStamp = new Int32Array(cellCount);
+  constructor(robotCount: number) {
     this.isFree = new Uint8Array(robotCount);
   }
 
@@ -87,8 +77,7 @@ export class EpochAssigner {
     const { world, distances, endRobot, freeRobots, tick, tickSeconds, ageWeight, maxTasks } = request;
     const rows = freeRobots.length;
     if (rows === 0 || world.openTasks.length === 0) return { pairs: [], candidates: 0 };
-    const { endStamp, endpointStamp, isFree } = this;
-    const stamp = ++this.stamp;
+    const isFree = this.isFree;
     isFree.fill(0);
     for (const r of freeRobots) isFree[r] = 1;
 
@@ -98,24 +87,17 @@ export class EpochAssigner {
     for (const task of world.openTasks) {
       if (candidates.length >= maxTasks) break;
       const count = taskEndpoints(world, task, endpoints);
-      const end = endpoints[count - 1];
-      let usable = endpointStamp[end] !== stamp;
+      let usable = true;
       for (let e = 0; e < count && usable; e++) {
-        const c = endpoints[e];
-        const rester = endRobot[c];
+        const rester = endRobot[endpoints[e]];
         if (rester >= 0 && !isFree[rester]) usable = false;
-        else if (endStamp[c] === stamp) usable = false;
       }
-      if (!usable) continue;
-      candidates.push(task);
-      endStamp[end] = stamp;
-      for (let e = 0; e < count; e++) endpointStamp[endpoints[e]] = stamp;
+      if (usable) candidates.push(task);
     }
     const cols = candidates.length;
     if (cols === 0) return { pairs: [], candidates: 0 };
 
     const cost = new Float64Array(rows * cols);
-    const distance = new Float64Array(rows * cols);
     for (let j = 0; j < cols; j++) {
       const task = candidates[j];
       const toPickup = distances.to(world.taskPickup[task]);
@@ -132,9 +114,7 @@ export class EpochAssigner {
       for (let i = 0; i < rows; i++) {
         const robot = freeRobots[i];
         const d = toPickup[world.robotCell[robot]];
-        const k = i * cols + j;
-        distance[k] = d;
-        cost[k] = d >= unreachable || (blocker !== -1 && blocker !== robot) ? FORBIDDEN_COST : d - credit;
+        cost[i * cols + j] = d >= unreachable || (blocker !== -1 && blocker !== robot) ? FORBIDDEN_COST : d - credit;
       }
     }
 
@@ -145,7 +125,7 @@ export class EpochAssigner {
       if (j < 0) continue;
       const k = i * cols + j;
       if (cost[k] >= FORBIDDEN_COST / 2) continue;
-      pairs.push({ robot: freeRobots[i], task: candidates[j], distance: distance[k], cost: cost[k] });
+      pairs.push({ robot: freeRobots[i], task: candidates[j], cost: cost[k] });
     }
     pairs.sort((a, b) => a.cost - b.cost || a.robot - b.robot);
     return { pairs, candidates: cols };

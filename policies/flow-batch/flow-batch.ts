@@ -1,34 +1,55 @@
 /**
- * Flow-batch: centralized batch dispatch plus prioritized planning for lifelong
- * pickup and delivery.
+ * Flow-batch: centralized batch dispatch plus prioritized planning for lifelong pickup and
+ * delivery.
  *
- * Every epoch (`epochSeconds`, aligned to multiples of the epoch length in ticks) the
- * controller collects the free robots (idle, holding no task) and the open tasks and
- * assigns them optimally over true grid distances (epoch-assignment.ts: rectangular
- * linear assignment, Kuhn 1955 / Jonker & Volgenant 1987, with an ageing credit so no task
- * waits forever). It then plans the new pairs one by one, in a fixed priority order (lowest
- * assignment cost first, then lowest robot index), each robot's whole task with space-time
- * A* against the paths already reserved (prioritized planning: Erdmann & Lozano-Perez 1987;
- * Silver 2005), ending in a rest at its last stop. The task is given to the robot
- * (`world.assign`) only after its plan succeeded; a robot whose planning fails keeps its
- * previous path, the task stays open, and both try again next epoch.
+ * Every epoch (`epochSeconds`, at least one tick; epochs fall on multiples of the epoch
+ * length) the controller collects the free robots (idle, holding no task) and the open
+ * tasks and assigns them optimally over true grid distances (epoch-assignment.ts:
+ * rectangular linear assignment, Kuhn 1955 / Jonker & Volgenant 1987). Ageing is a cost
+ * credit, not a bound: `ageWeight` cells per second waited are subtracted from the
+ * robot-to-pickup distance, so a task far from every robot is eventually cheaper than any
+ * task released long enough after it, and no task waits forever.
+ *
+ * The new pairs are then planned one at a time against the paths already reserved
+ * (prioritized planning: Erdmann & Lozano-Perez 1987; Silver 2005), each robot's whole task
+ * with space-time A* (planTask), ending in a rest at its last stop. Priority: lowest
+ * assignment cost first, then lowest robot index. Because the cost carries the ageing
+ * credit, the oldest tasks plan first, on the emptiest table, and are the least likely to
+ * fail. A task is given to its robot (`world.assign`) only after the plan succeeded; a robot
+ * whose planning fails keeps its previous path, the task stays open, and both try again at
+ * the next dispatch.
+ *
+ * Two tasks of one epoch may end on the same cell (two parcels for one chute); the second
+ * robot then finds the cell taken by the first one's rest. It joins another round: the
+ * assignment is solved again for the robots still blocked against the tasks still open.
+ * The first pair of a round is never blocked, so there are at most as many rounds as free
+ * robots.
  *
  * Robots without a task go to the nearest parking spot that is not the end of another path,
  * at once (not only at epochs), so drops and aisles clear quickly.
  *
- * Deviations from the plain scheme, and why:
+ * Choices beyond the plain scheme, and why:
  *  - "Free" includes idle robots still on their way to parking: they hold only a parking
- *    reservation, so the epoch may send them straight to a pickup (their plan starts where
+ *    reservation, so a dispatch may send them straight to a pickup (their plan starts where
  *    they stand at this tick; a failed plan restores the rest of the parking path).
- *  - Option `assignOnFree`: also run an epoch at any tick where a robot finished its task.
- *    Off by default: on the demo hall it did not raise throughput and costs more
- *    assignments (see the report of the contributor who measured it).
+ *  - Option `assignOnFree` (default on): also dispatch at any tick where a robot finished
+ *    its task, not only at epochs. Measured on the demo hall (4 simulated hours, 900
+ *    tasks/h, replications 1-3): with 40 robots mean lead time 77/93/74 s instead of
+ *    86/207/79 s; with 10 robots (overloaded) 2881/2899/2924 tasks delivered instead of
+ *    2745/2763/2793. Two effects: in overload no robot idles until the epoch while tasks
+ *    wait; and a popular drop is served faster, because a task may not end where another
+ *    path rests, so tasks for one chute are served one robot at a time, and the robot that
+ *    just tipped into that chute may take the next parcel for it at once. Tasks released
+ *    between frees still wait for the next epoch and are batched there.
  *
  * Collision freedom is the token-passing argument (Ma, Li, Kumar, Koenig, AAMAS 2017): every
  * path is planned against all reserved paths and rests, ends in a rest that nobody crosses,
- * and a task is only taken when none of its endpoints is the rest of another robot. On
- * well-formed layouts (checkWellFormed) planning towards a free endpoint is always
- * possible eventually, so every task is served.
+ * and a task is only taken when none of its endpoints is the rest of another robot. The
+ * engine's validator checks it independently.
+ *
+ * step() returns tick + 1 while any robot follows a path; otherwise the next epoch tick while
+ * tasks are open and a robot is idle (or a parking plan must be retried), so the engine wakes
+ * the policy; Infinity when there is nothing to do.
  */
 import { z } from 'zod';
 import { unreachable } from '../../sim/distance-table.ts';
@@ -45,7 +66,7 @@ export const flowBatchOptions = z
     epochSeconds: z.number().positive().finite().default(5),
     ageWeight: z.number().nonnegative().finite().default(0.1),
     maxTasksPerEpoch: z.number().int().positive().default(200),
-    assignOnFree: z.boolean().default(false),
+    assignOnFree: z.boolean().default(true),
     maxExpansions: z.number().int().positive().default(200_000),
   })
   .strict();
@@ -55,7 +76,7 @@ export const flowBatchOptionDocs: PolicyOptionDoc[] = [
   { name: 'epochSeconds', default: 5, unit: 's', description: 'time between two dispatch epochs (at least one tick)' },
   { name: 'ageWeight', default: 0.1, unit: 'cells/s', description: 'cost credit per second a task has waited, subtracted from the robot-to-pickup distance; 0 disables ageing' },
   { name: 'maxTasksPerEpoch', default: 200, unit: 'tasks', description: 'open tasks (oldest first) considered per epoch, bounding the assignment matrix' },
-  { name: 'assignOnFree', default: false, unit: 'flag', description: 'also dispatch at any tick where a robot finishes its task, not only at epochs' },
+  { name: 'assignOnFree', default: true, unit: 'flag', description: 'also dispatch at any tick where a robot finishes its task, not only at epochs' },
   { name: 'maxExpansions', default: 200_000, unit: 'states', description: 'space-time A* expansion limit per leg; a failed plan is retried next epoch' },
 ];
 
@@ -76,6 +97,7 @@ export class FlowBatch implements Policy {
   private readonly parkRetryTick: Int32Array;
   private readonly endpoints = [0, 0, 0];
   private epochs = 0;
+  private rounds = 0;
   private assigned = 0;
   private failedPlans = 0;
   private candidateTasks = 0;
@@ -88,7 +110,7 @@ export class FlowBatch implements Policy {
     const { world, layout } = context;
     this.table = new ReservationTable(layout.cellCount, world.robotCount);
     this.planner = { world, table: this.table, search: new SpaceTimeAStar(layout, this.table, options.maxExpansions), distances: context.distances };
-    this.assigner = new EpochAssigner(layout.cellCount, world.robotCount);
+    this.assigner = new EpochAssigner(world.robotCount);
     this.epochTicks = Math.max(1, Math.round(options.epochSeconds / context.tickSeconds));
     this.pathEnd = new Int32Array(world.robotCount);
     this.wasBusy = new Uint8Array(world.robotCount);
@@ -132,47 +154,60 @@ export class FlowBatch implements Policy {
     return Infinity;
   }
 
-  /** One epoch: optimal assignment of free robots to open tasks, then prioritized planning. */
+  /**
+   * One epoch: optimal assignment of free robots to open tasks, then prioritized planning.
+   * Rounds: a robot whose task was blocked by the rest of a robot planned earlier in the
+   * same round (two tasks for one drop) joins the next round, which re-solves the
+   * assignment for the robots still free against the tasks still open. A robot whose
+   * planning failed waits for the next epoch. At most one round per free robot.
+   */
   private dispatch(tick: number): void {
     const { world, distances, tickSeconds } = this.context;
     if (world.openTasks.length === 0) return;
-    const free: number[] = [];
+    let free: number[] = [];
     for (let r = 0; r < world.robotCount; r++) {
       if (world.robotPhase[r] === Phase.Idle && world.robotTask[r] < 0) free.push(r);
     }
     if (free.length === 0) return;
     this.epochs++;
-    const { pairs, candidates } = this.assigner.assign({
-      world,
-      distances,
-      endRobot: this.table.endRobot,
-      freeRobots: free,
-      tick,
-      tickSeconds,
-      ageWeight: this.options.ageWeight,
-      maxTasks: this.options.maxTasksPerEpoch,
-    });
-    this.candidateTasks += candidates;
-    for (const { robot, task } of pairs) {
-      // Robots planned earlier in this epoch may rest on an endpoint; the task waits.
-      if (this.blockedByRest(robot, task)) {
-        this.failedPlans++;
-        continue;
+    while (free.length > 0 && world.openTasks.length > 0) {
+      this.rounds++;
+      const { pairs, candidates } = this.assigner.assign({
+        world,
+        distances,
+        endRobot: this.table.endRobot,
+        freeRobots: free,
+        tick,
+        tickSeconds,
+        ageWeight: this.options.ageWeight,
+        maxTasks: this.options.maxTasksPerEpoch,
+      });
+      this.candidateTasks += candidates;
+      const blocked: number[] = [];
+      for (const { robot, task } of pairs) {
+        if (this.blockedByRest(robot, task)) {
+          blocked.push(robot);
+          continue;
+        }
+        const cell = world.robotCell[robot];
+        const previous = this.remainingPath(robot, tick);
+        this.table.release(robot, tick);
+        const plan = planTask(this.planner, robot, cell, tick, task);
+        if (plan) {
+          this.table.reserve(robot, plan.path, tick);
+          this.pathEnd[robot] = tick + plan.path.length - 1;
+          world.assign(robot, task);
+          this.wasBusy[robot] = 1;
+          this.assigned++;
+        } else {
+          this.table.reserve(robot, previous, tick);
+          this.failedPlans++;
+        }
       }
-      const cell = world.robotCell[robot];
-      const previous = this.remainingPath(robot, tick);
-      this.table.release(robot, tick);
-      const plan = planTask(this.planner, robot, cell, tick, task);
-      if (plan) {
-        this.table.reserve(robot, plan.path, tick);
-        this.pathEnd[robot] = tick + plan.path.length - 1;
-        world.assign(robot, task);
-        this.wasBusy[robot] = 1;
-        this.assigned++;
-      } else {
-        this.table.reserve(robot, previous, tick);
-        this.failedPlans++;
-      }
+      // The first pair of a round is never blocked (the candidates and costs exclude rests of
+      // others), so every round assigns or drops a robot; the guard only makes that explicit.
+      if (blocked.length === 0 || blocked.length === pairs.length) break;
+      free = blocked.sort((a, b) => a - b);
     }
   }
 
@@ -237,6 +272,7 @@ export class FlowBatch implements Policy {
   counters(): Record<string, number> {
     return {
       epochs: this.epochs,
+      rounds: this.rounds,
       candidateTasks: this.candidateTasks,
       assigned: this.assigned,
       failedPlans: this.failedPlans,
