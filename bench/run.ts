@@ -23,8 +23,9 @@ const wanted = (name: string) => only === null || name.startsWith(only);
 
 type Row = Record<string, string | number | boolean>;
 const rows: Row[] = [];
+/** Progress on stderr (the JSON document stays alone on stdout). */
 const log = (text: string) => {
-  if (!json) process.stderr.write(`${text}\n`);
+  process.stderr.write(`${text}\n`);
 };
 
 function measure(name: string, scenario: Scenario): Row {

@@ -17,6 +17,11 @@
  * is admissible and consistent (ready is non-decreasing), and it stops the search from
  * flooding space-time while a busy station is still taken.
  *
+ * Before searching, a breadth-first pass checks that the goal can be reached at all around
+ * the robots that rest for good (a rest that began before the start tick never ends on its
+ * own): on a crowded floor most failed searches are of this kind, and the pass costs
+ * O(cells) where the space-time search would spend its whole expansion budget.
+ *
  * Memory is reused across searches (typed arrays sized once, a stamp per (tick mod
  * horizon, cell) for the closed set). Cost is bounded by `maxExpansions`; a search that
  * exceeds it or runs past the reservation horizon fails and returns null.
@@ -46,6 +51,11 @@ export class SpaceTimeAStar {
   private heapSize = 0;
   private closed: Int32Array;
   private ready = new Int32Array(256);
+  private readonly reachStamp: Int32Array;
+  private readonly reachQueue: Int32Array;
+  private reachId = 0;
+  /** Searches that failed the reachability pass without expanding a state. */
+  unreachableSkips = 0;
   private closedHorizon = 0;
   private searchId = 0;
   expansions = 0;
@@ -63,6 +73,35 @@ export class SpaceTimeAStar {
     this.heapNode = new Int32Array(this.capacity);
     this.heapKey = new Float64Array(this.capacity);
     this.closed = new Int32Array(0);
+    this.reachStamp = new Int32Array(layout.cellCount);
+    this.reachQueue = new Int32Array(layout.cellCount);
+  }
+
+  /** True when `goal` is reachable from `start` without entering a cell another robot rests on since before `tick`. */
+  private reachable(start: number, goal: number, tick: number, robot: number): boolean {
+    const { table } = this;
+    const neighbors = this.layout.neighbors;
+    const stamp = this.reachStamp;
+    const queue = this.reachQueue;
+    const id = ++this.reachId;
+    let head = 0;
+    let tail = 0;
+    queue[tail++] = start;
+    stamp[start] = id;
+    while (head < tail) {
+      const cell = queue[head++];
+      if (cell === goal) return true;
+      const base = cell * 4;
+      for (let d = 0; d < 4; d++) {
+        const n = neighbors[base + d];
+        if (n < 0 || stamp[n] === id) continue;
+        stamp[n] = id;
+        const rester = table.endRobot[n];
+        if (rester >= 0 && rester !== robot && table.endFrom[n] <= tick) continue;
+        queue[tail++] = n;
+      }
+    }
+    return false;
   }
 
   /**
@@ -138,6 +177,10 @@ export class SpaceTimeAStar {
     const goalHolds = (tick: number): boolean =>
       restForever ? table.isFreeFrom(goal, tick, robot) : table.isFreeDuring(goal, tick, tick + holdTicks, robot);
     if (start === goal) return goalHolds(startTick) ? Int32Array.of(start) : null;
+    if (!this.reachable(start, goal, startTick, robot)) {
+      this.unreachableSkips++;
+      return null;
+    }
     push(start, startTick, -1);
     closed[(startTick & mask) * cells + start] = id;
     let expanded = 0;

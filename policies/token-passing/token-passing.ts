@@ -47,6 +47,9 @@ export class TokenPassing implements Policy {
   /** (world version, table revision) at each robot's last fruitless token request. */
   private readonly triedVersion: Float64Array;
   private readonly triedRevision: Float64Array;
+  /** Consecutive failed plans per robot, and the tick of its next try. */
+  private readonly failures: Int32Array;
+  private readonly retryAt: Float64Array;
   private taskSwaps = 0;
   private failedPlans = 0;
 
@@ -62,13 +65,15 @@ export class TokenPassing implements Policy {
     this.pickupTick = new Int32Array(world.robotCount).fill(-1);
     this.triedVersion = new Float64Array(world.robotCount).fill(-1);
     this.triedRevision = new Float64Array(world.robotCount).fill(-1);
+    this.failures = new Int32Array(world.robotCount);
+    this.retryAt = new Float64Array(world.robotCount);
     for (let r = 0; r < world.robotCount; r++) this.table.rest(r, world.robotCell[r], 0);
   }
 
   step(tick: number, moves: Int32Array): number {
     const { world } = this.context;
     const robots = world.robotCount;
-    let retry = false;
+    let retryTick = Infinity;
     // Token requests in robot order; displaced robots (swaps) join the end of the queue.
     const requests: number[] = [];
     for (let r = 0; r < robots; r++) if (this.pathEnd[r] <= tick) requests.push(r);
@@ -77,9 +82,20 @@ export class TokenPassing implements Policy {
       const r = requests[i];
       if (world.robotPhase[r] !== Phase.Idle) continue;
       if (this.triedVersion[r] === world.version && this.triedRevision[r] === this.table.revision) continue;
+      if (this.retryAt[r] > tick) {
+        retryTick = Math.min(retryTick, this.retryAt[r]);
+        continue;
+      }
       const displaced = this.request(r, tick, budget-- > 0);
       if (displaced >= 0) requests.push(displaced);
-      else if (displaced === -2) retry = true;
+      if (displaced === -2) {
+        // Back off after failed plans (1, 2, 4, 8, 16 ticks): a crowded floor rarely clears in one tick.
+        this.failures[r]++;
+        this.retryAt[r] = tick + Math.min(16, 2 ** (this.failures[r] - 1));
+        retryTick = Math.min(retryTick, this.retryAt[r]);
+      } else {
+        this.failures[r] = 0;
+      }
     }
     let following = false;
     for (let r = 0; r < robots; r++) {
@@ -88,7 +104,7 @@ export class TokenPassing implements Policy {
         following = true;
       }
     }
-    return following || retry ? tick + 1 : Infinity;
+    return following ? tick + 1 : retryTick;
   }
 
   /**
@@ -231,6 +247,7 @@ export class TokenPassing implements Policy {
   counters(): Record<string, number> {
     return {
       searches: this.planner.search.searches,
+      unreachableSkips: this.planner.search.unreachableSkips,
       expansions: this.planner.search.expansions,
       taskSwaps: this.taskSwaps,
       failedPlans: this.failedPlans,
