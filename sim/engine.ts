@@ -176,8 +176,11 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     }
   } else {
     for (let i = 0; i < robots; i++) newRandomTask(0);
-    // Saturated demand keeps one open task per robot: each assignment releases the next.
-    world.onAssign = () => newRandomTask(world.currentTick);
+    // Saturated demand keeps one open task per robot: an assignment releases the next,
+    // unless a task taken back by a swap already refilled the list.
+    world.onAssign = () => {
+      if (world.openTasks.length < robots) newRandomTask(world.currentTick);
+    };
   }
 
   // Phases ------------------------------------------------------------------------

@@ -37,6 +37,11 @@ export const tokenPassingOptionDocs = [
   { name: 'maxExpansions', default: 200_000, unit: 'states', description: 'space-time A* expansion limit per leg; a failed search is retried on the next tick' },
 ];
 
+/** Robots a free robot considers taking a task from, nearest pickups first (swaps only). */
+const maxSwapCandidates = 3;
+/** Ticks a robot that found no task to swap waits before it looks for one again. */
+const swapRetryTicks = 8;
+
 export class TokenPassing implements Policy {
   private readonly table: ReservationTable;
   private readonly planner: Planner;
@@ -50,7 +55,9 @@ export class TokenPassing implements Policy {
   /** Consecutive failed plans per robot, and the tick of its next try. */
   private readonly failures: Int32Array;
   private readonly retryAt: Float64Array;
+  private readonly swapRetryAt: Float64Array;
   private taskSwaps = 0;
+  private requests = 0;
   private failedPlans = 0;
 
   constructor(
@@ -67,6 +74,7 @@ export class TokenPassing implements Policy {
     this.triedRevision = new Float64Array(world.robotCount).fill(-1);
     this.failures = new Int32Array(world.robotCount);
     this.retryAt = new Float64Array(world.robotCount);
+    this.swapRetryAt = new Float64Array(world.robotCount);
     for (let r = 0; r < world.robotCount; r++) this.table.rest(r, world.robotCell[r], 0);
   }
 
@@ -77,7 +85,9 @@ export class TokenPassing implements Policy {
     // Token requests in robot order; displaced robots (swaps) join the end of the queue.
     const requests: number[] = [];
     for (let r = 0; r < robots; r++) if (this.pathEnd[r] <= tick) requests.push(r);
-    let budget = 4 * robots + 16;
+    // Robots displaced by a swap ask again in the same tick, but may not displace in turn:
+    // chains of swaps cost a plan per link and rarely pay (a bound on the paper's recursion).
+    const firstDisplaced = requests.length;
     for (let i = 0; i < requests.length; i++) {
       const r = requests[i];
       if (world.robotPhase[r] !== Phase.Idle) continue;
@@ -86,7 +96,7 @@ export class TokenPassing implements Policy {
         retryTick = Math.min(retryTick, this.retryAt[r]);
         continue;
       }
-      const displaced = this.request(r, tick, budget-- > 0);
+      const displaced = this.request(r, tick, i < firstDisplaced);
       if (displaced >= 0) requests.push(displaced);
       if (displaced === -2) {
         // Back off after failed plans (1, 2, 4, 8, 16 ticks): a crowded floor rarely clears in one tick.
@@ -114,6 +124,7 @@ export class TokenPassing implements Policy {
   private request(robot: number, tick: number, swapsAllowed: boolean): number {
     const { world, distances, layout } = this.context;
     const table = this.table;
+    this.requests++;
     const cell = world.robotCell[robot];
     const toRobot = distances.to(cell);
     const endRobot = table.endRobot;
@@ -131,9 +142,11 @@ export class TokenPassing implements Policy {
       best = task;
       bestDistance = d;
     }
-    if (this.swaps && swapsAllowed) {
+    if (this.swaps && swapsAllowed && this.swapRetryAt[robot] <= tick) {
       const displaced = this.trySwap(robot, tick, best >= 0 ? bestDistance : Infinity);
       if (displaced !== -1) return displaced;
+      // Performance shortcut: a robot that found no swap waits a few ticks before looking again.
+      this.swapRetryAt[robot] = tick + swapRetryTicks;
     }
     if (best >= 0) {
       table.release(robot, tick);
@@ -205,7 +218,9 @@ export class TokenPassing implements Policy {
       if (endpointsFree) candidates.push(other);
     }
     candidates.sort((a, b) => toRobot[world.taskPickup[world.robotTask[a]]] - toRobot[world.taskPickup[world.robotTask[b]]] || a - b);
-    for (const other of candidates) {
+    // Performance shortcut: only the nearest few candidates are tried, and each first by its
+    // pickup leg alone; the whole task is planned only when that leg arrives earlier.
+    for (const other of candidates.slice(0, maxSwapCandidates)) {
       const task = world.robotTask[other];
       const oldPath = table.paths[other]!;
       const oldStart = table.pathStart[other];
@@ -221,7 +236,18 @@ export class TokenPassing implements Policy {
       }
       table.rest(other, otherCell, tick);
       table.release(robot, tick);
-      const plan = planTask(this.planner, robot, cell, tick, task);
+      const pickup = world.taskPickup[task];
+      const leg = this.planner.search.search({
+        robot,
+        start: cell,
+        startTick: tick,
+        goal: pickup,
+        heuristic: distances.to(pickup),
+        holdTicks: world.taskPickupTicks[task],
+        restForever: false,
+      });
+      const earlier = leg !== null && tick + leg.length - 1 < this.pickupTick[other];
+      const plan = earlier ? planTask(this.planner, robot, cell, tick, task) : null;
       if (plan && plan.pickupTick < this.pickupTick[other]) {
         world.unassign(other);
         this.pathEnd[other] = tick;
@@ -246,6 +272,7 @@ export class TokenPassing implements Policy {
 
   counters(): Record<string, number> {
     return {
+      tokenRequests: this.requests,
       searches: this.planner.search.searches,
       unreachableSkips: this.planner.search.unreachableSkips,
       expansions: this.planner.search.expansions,
