@@ -49,7 +49,7 @@ export interface RunSummary {
   stations: { cell: string; kind: 'pickup' | 'drop'; idleFraction: number; starvedFraction: number }[];
   agentSteps: number;
   safety: string;
-  timing: { wallSeconds: number; agentStepsPerSecond: number; planningSeconds: number; planningShare: number };
+  timing: { wallSeconds: number; agentStepsPerSecond: number; planningSeconds: number; planningSecondsPerSimulatedHour: number; planningShare: number };
 }
 
 export interface SummaryParts {
@@ -165,6 +165,7 @@ export function summarize(scenario: Scenario, records: ReplicationRecord[], wall
       wallSeconds,
       agentStepsPerSecond: engineSeconds > 0 ? agentSteps / engineSeconds : 0,
       planningSeconds,
+      planningSecondsPerSimulatedHour: planningSeconds / (records.length * scenario.run.hours),
       planningShare: engineSeconds > 0 ? planningSeconds / engineSeconds : 0,
     },
   };

@@ -42,7 +42,8 @@ describe('token passing (Ma, Li, Kumar, Koenig, AAMAS 2017)', () => {
     expect(checkWellFormed(parseLayout(corridor), 2).wellFormed).toBe(true);
   });
 
-  for (const policy of ['token-passing', 'token-passing-swaps']) {
+  // flow-batch plans against the same reservations (prioritized planning), so it must pass too.
+  for (const policy of ['token-passing', 'token-passing-swaps', 'flow-batch']) {
     it(`${policy}: two robots pass each other in a one-lane corridor with one pocket, without collision`, () => {
       let sawBothInLane = false;
       const records = runReplications(corridorScenario(policy), undefined, {
