@@ -25,6 +25,14 @@
  * The first pair of a round is never blocked, so there are at most as many rounds as free
  * robots.
  *
+ * Where a path ends (option `restAt`, default 'parking'): a planned task path goes on from
+ * its last stop to the nearest free parking spot and rests there, so a drop is never the
+ * end of a path and never blocks the next task for it; robots driving to parking count as
+ * free and are re-planned from where they stand. Measured on the demo hall (24 robots,
+ * 900 tasks/h, 3 x 2 h): mean lead time 54 s against 85 s when paths rest on the drop as
+ * in token passing ('drop'), p95 78 s against 214 s, at equal throughput. With no free spot
+ * the plan fails and the robot waits for one (more robots than spots: not well-formed).
+ *
  * Robots without a task go to the nearest parking spot that is not the end of another path,
  * at once (not only at epochs), so drops and aisles clear quickly.
  *
@@ -68,6 +76,7 @@ export const flowBatchOptions = z
     maxTasksPerEpoch: z.number().int().positive().default(200),
     assignOnFree: z.boolean().default(true),
     maxExpansions: z.number().int().positive().default(200_000),
+    restAt: z.enum(['drop', 'parking']).default('parking'),
   })
   .strict();
 export type FlowBatchOptions = z.infer<typeof flowBatchOptions>;
@@ -78,6 +87,7 @@ export const flowBatchOptionDocs: PolicyOptionDoc[] = [
   { name: 'maxTasksPerEpoch', default: 200, unit: 'tasks', description: 'open tasks (oldest first) considered per epoch, bounding the assignment matrix' },
   { name: 'assignOnFree', default: true, unit: 'flag', description: 'also dispatch at any tick where a robot finishes its task, not only at epochs' },
   { name: 'maxExpansions', default: 200_000, unit: 'states', description: 'space-time A* expansion limit per leg; a failed plan is retried next epoch' },
+  { name: 'restAt', default: 'parking', unit: 'drop|parking', description: "where a planned task path ends: 'parking' drives on to the nearest free parking spot after the last stop, so a drop never blocks the next task for it; 'drop' rests on the drop as token passing does" },
 ];
 
 export class FlowBatch implements Policy {
@@ -119,6 +129,15 @@ export class FlowBatch implements Policy {
     this.parkRetryTick = new Int32Array(world.robotCount);
     for (let r = 0; r < world.robotCount; r++) this.table.rest(r, world.robotCell[r], 0);
   }
+
+  /** Free parking spots (no other robot's rest) nearest to `cell` first. */
+  private readonly parkingNear = (cell: number): number[] => {
+    const { layout, distances } = this.context;
+    const toCell = distances.to(cell);
+    const spots: number[] = [];
+    for (const c of layout.parking) if (this.table.endRobot[c] < 0 && toCell[c] < unreachable) spots.push(c);
+    return spots.sort((a, b) => toCell[a] - toCell[b] || a - b);
+  };
 
   step(tick: number, moves: Int32Array): number {
     const { world, layout } = this.context;
@@ -192,7 +211,7 @@ export class FlowBatch implements Policy {
         const cell = world.robotCell[robot];
         const previous = this.remainingPath(robot, tick);
         this.table.release(robot, tick);
-        const plan = planTask(this.planner, robot, cell, tick, task);
+        const plan = planTask(this.planner, robot, cell, tick, task, this.options.restAt === 'parking' ? this.parkingNear : undefined);
         if (plan) {
           this.table.reserve(robot, plan.path, tick);
           this.pathEnd[robot] = tick + plan.path.length - 1;

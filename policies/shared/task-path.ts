@@ -25,21 +25,38 @@ export interface Planner {
   distances: DistanceTables;
 }
 
-/** Plans robot r, standing at `from` at `tick`, through the task's stops; null when any leg fails. */
-export function planTask(planner: Planner, robot: number, from: number, tick: number, task: number): TaskPlan | null {
+/**
+ * Plans robot r, standing at `from` at `tick`, through the task's stops; null when any leg
+ * fails. With `parkingAfter`, the path does not end on the last stop: it goes on to the
+ * first of those parking cells it can rest on (in the order given, at most three tried),
+ * and the plan fails when none works.
+ */
+export function planTask(planner: Planner, robot: number, from: number, tick: number, task: number, parkingAfter?: (lastStop: number) => number[]): TaskPlan | null {
   const { world } = planner;
   const stops: { cell: number; hold: number }[] = [{ cell: world.taskPickup[task], hold: world.taskPickupTicks[task] }];
   stops.push({ cell: world.taskDrop[task], hold: world.taskDropTicks[task] });
   if (world.taskReturn[task] >= 0) stops.push({ cell: world.taskReturn[task], hold: world.taskReturnTicks[task] });
-  return planStops(planner, robot, from, tick, stops);
+  if (!parkingAfter) return planStops(planner, robot, from, tick, stops, true);
+  const plan = planStops(planner, robot, from, tick, stops, false);
+  if (!plan) return null;
+  const lastStop = stops[stops.length - 1].cell;
+  const arrival = tick + plan.path.length - 1;
+  for (const spot of parkingAfter(lastStop).slice(0, 3)) {
+    const leg = planRest(planner, robot, lastStop, arrival, spot);
+    if (!leg) continue;
+    const path = new Int32Array(plan.path.length + leg.length - 1);
+    path.set(plan.path);
+    path.set(leg.subarray(1), plan.path.length);
+    return { path, pickupTick: plan.pickupTick };
+  }
+  // No parking spot to go on to: no plan. Resting on the drop instead would block it for
+  // every other task (measured on the demo hall with 40 robots and 38 spots: 3377 instead
+  // of 4590 deliveries in 2 h); the robot waits for a spot, the task for another robot.
+  return null;
 }
 
-/** Plans the rest of a task a robot already carries (after pickup), e.g. after a replan. */
-export function planRemainingStops(planner: Planner, robot: number, from: number, tick: number, stops: { cell: number; hold: number }[]): TaskPlan | null {
-  return planStops(planner, robot, from, tick, stops);
-}
-
-function planStops(planner: Planner, robot: number, from: number, tick: number, stops: { cell: number; hold: number }[]): TaskPlan | null {
+/** `restAtEnd`: the last stop ends in a rest; otherwise it is held for its handling only. */
+function planStops(planner: Planner, robot: number, from: number, tick: number, stops: { cell: number; hold: number }[], restAtEnd: boolean): TaskPlan | null {
   const { table, search, distances } = planner;
   let estimate = 64;
   let previous = from;
@@ -62,7 +79,7 @@ function planStops(planner: Planner, robot: number, from: number, tick: number, 
       goal: stop.cell,
       heuristic: distances.to(stop.cell),
       holdTicks: stop.hold,
-      restForever: last,
+      restForever: last && restAtEnd,
     });
     if (!leg) return null;
     // Skip the first cell of every leg after the first: it repeats the previous leg's last cell.
