@@ -81,6 +81,9 @@ export function renderRunTable(summary: RunSummary): string {
       `Little's law check: tasks in system ${little.tasksInSystem.toFixed(2)} vs throughput x lead time ${little.throughputTimesLeadTime.toFixed(2)} (gap ${(little.relativeGap * 100).toFixed(1)}%${little.relativeGap > 0.1 ? '; a large gap means the run is not in steady state or demand exceeds capacity' : ''})`,
     );
   }
+  if (!summary.wellFormed) {
+    lines.push(`warning: the floor is not well-formed for ${summary.robots} robots (${summary.wellFormedViolation}); planned policies may stall and leave tasks undone`);
+  }
   const worst = [...summary.stations].sort((a, b) => b.starvedFraction - a.starvedFraction).slice(0, 3);
   if (worst.length > 0) {
     lines.push(`most starved stations: ${worst.map((s) => `${s.kind} ${s.cell} ${(s.starvedFraction * 100).toFixed(1)}%`).join(', ')}`);

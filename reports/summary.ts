@@ -8,7 +8,7 @@
  */
 import type { Scenario } from '../scenarios/scenario.ts';
 import type { ReplicationRecord } from '../sim/engine.ts';
-import { cellLabel, CellKind, parseLayout } from '../sim/layout.ts';
+import { cellLabel, CellKind, checkWellFormed, parseLayout } from '../sim/layout.ts';
 import { intervalOf, mserCut, type Interval } from './stats/index.ts';
 import { windowMetrics, type WindowMetrics } from './window-metrics.ts';
 import { safetyNote } from './safety.ts';
@@ -47,6 +47,9 @@ export interface RunSummary {
   warmup: WarmupInfo;
   littlesLaw: { tasksInSystem: number; throughputTimesLeadTime: number; relativeGap: number };
   stations: { cell: string; kind: 'pickup' | 'drop'; idleFraction: number; starvedFraction: number }[];
+  /** Well-formedness of the floor for this fleet (Ma et al. 2017); planned policies need it to finish every task. */
+  wellFormed: boolean;
+  wellFormedViolation: string | null;
   agentSteps: number;
   safety: string;
   timing: { wallSeconds: number; agentStepsPerSecond: number; planningSeconds: number; planningSecondsPerSimulatedHour: number; planningShare: number };
@@ -103,6 +106,7 @@ export function summarize(scenario: Scenario, records: ReplicationRecord[], wall
   };
 
   const layout = parseLayout(scenario.layoutText);
+  const wellFormed = checkWellFormed(layout, scenario.fleet.robots);
   const stations = records[0].stationCells;
   const stationRows = Array.from(stations, (cell, s) => ({
     cell: cellLabel(layout, cell),
@@ -159,6 +163,8 @@ export function summarize(scenario: Scenario, records: ReplicationRecord[], wall
       relativeGap: Math.abs(inSystem.mean - littleRight) / Math.max(1e-12, Math.abs(inSystem.mean)),
     },
     stations: stationRows,
+    wellFormed: wellFormed.wellFormed,
+    wellFormedViolation: wellFormed.violation,
     agentSteps,
     safety: safetyNote,
     timing: {
