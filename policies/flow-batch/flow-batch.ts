@@ -112,6 +112,9 @@ export class FlowBatch implements Policy {
   private failedPlans = 0;
   private candidateTasks = 0;
   private parkFailures = 0;
+  /** Consecutive failed plans per robot, and the tick before which it sits out dispatches. */
+  private readonly failures: Int32Array;
+  private readonly retryAt: Float64Array;
 
   constructor(
     private readonly context: PolicyContext,
@@ -127,6 +130,8 @@ export class FlowBatch implements Policy {
     this.parkTriedVersion = new Float64Array(world.robotCount).fill(-1);
     this.parkTriedRevision = new Float64Array(world.robotCount).fill(-1);
     this.parkRetryTick = new Int32Array(world.robotCount);
+    this.failures = new Int32Array(world.robotCount);
+    this.retryAt = new Float64Array(world.robotCount);
     for (let r = 0; r < world.robotCount; r++) this.table.rest(r, world.robotCell[r], 0);
   }
 
@@ -185,7 +190,7 @@ export class FlowBatch implements Policy {
     if (world.openTasks.length === 0) return;
     let free: number[] = [];
     for (let r = 0; r < world.robotCount; r++) {
-      if (world.robotPhase[r] === Phase.Idle && world.robotTask[r] < 0) free.push(r);
+      if (world.robotPhase[r] === Phase.Idle && world.robotTask[r] < 0 && this.retryAt[r] <= tick) free.push(r);
     }
     if (free.length === 0) return;
     this.epochs++;
@@ -218,9 +223,13 @@ export class FlowBatch implements Policy {
           world.assign(robot, task);
           this.wasBusy[robot] = 1;
           this.assigned++;
+          this.failures[robot] = 0;
         } else {
           this.table.reserve(robot, previous, tick);
           this.failedPlans++;
+          // Back off (1, 2, 4, 8 epochs): on a crowded floor the same plan keeps failing.
+          this.failures[robot]++;
+          this.retryAt[robot] = tick + this.epochTicks * Math.min(8, 2 ** (this.failures[robot] - 1));
         }
       }
       // The first pair of a round is never blocked (the candidates and costs exclude rests of

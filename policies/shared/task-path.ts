@@ -37,11 +37,14 @@ export function planTask(planner: Planner, robot: number, from: number, tick: nu
   stops.push({ cell: world.taskDrop[task], hold: world.taskDropTicks[task] });
   if (world.taskReturn[task] >= 0) stops.push({ cell: world.taskReturn[task], hold: world.taskReturnTicks[task] });
   if (!parkingAfter) return planStops(planner, robot, from, tick, stops, true);
+  const lastStop = stops[stops.length - 1].cell;
+  // Without a free spot the plan cannot end well: fail before searching the task's legs.
+  const spots = parkingAfter(lastStop);
+  if (spots.length === 0) return null;
   const plan = planStops(planner, robot, from, tick, stops, false);
   if (!plan) return null;
-  const lastStop = stops[stops.length - 1].cell;
   const arrival = tick + plan.path.length - 1;
-  for (const spot of parkingAfter(lastStop).slice(0, 3)) {
+  for (const spot of spots.slice(0, 3)) {
     const leg = planRest(planner, robot, lastStop, arrival, spot);
     if (!leg) continue;
     const path = new Int32Array(plan.path.length + leg.length - 1);
