@@ -44,6 +44,13 @@ describe('cycle time of one robot (Groover, Automation, Production Systems and C
     expect(summary.throughputPerHour.mean).toBeCloseTo(3600 / cycleSeconds, 9);
     // Every batch holds exactly one cycle per interval, so the batch-means interval has zero width.
     expect(summary.throughputPerHour.halfWidth).toBeCloseTo(0, 9);
+    // Pinned by hand: the robot leaves H at tick 0, reaches P at 1, picks until 4, reaches D
+    // at 11 and delivers at 13, then every 19 ticks: deliveries at 13 + 19k, k = 0..189 (the
+    // last at 3604 < 3610). Its plan keeps it moving or handling every tick, so the engine
+    // runs a motion event on each of the 3610 ticks and 3610 agent-steps.
+    expect(records[0].delivered).toBe(190);
+    expect(records[0].motionTicks).toBe(3610);
+    expect(records[0].agentSteps).toBe(3610);
     // The robot is loaded 7 of every 19 s and handling 5 of every 19 s.
     expect(summary.robotTime.loaded.mean).toBeCloseTo(7 / 19, 9);
     expect(summary.robotTime.handling.mean).toBeCloseTo(5 / 19, 9);
