@@ -60,13 +60,12 @@
  * the policy; Infinity when there is nothing to do.
  */
 import { z } from 'zod';
-import { unreachable } from '../../sim/distance-table.ts';
 import { CellKind } from '../../sim/layout.ts';
 import type { Policy, PolicyContext, PolicyOptionDoc } from '../../sim/policy.ts';
 import { ReservationTable } from '../../sim/reservation-table.ts';
 import { SpaceTimeAStar } from '../../sim/space-time-astar.ts';
 import { Phase } from '../../sim/world.ts';
-import { planRest, planTask, type Planner } from '../shared/task-path.ts';
+import { freeParkingSpots, planRest, planTask, type Planner } from '../shared/task-path.ts';
 import { EpochAssigner, taskEndpoints } from './epoch-assignment.ts';
 
 export const flowBatchOptions = z
@@ -138,10 +137,7 @@ export class FlowBatch implements Policy {
   /** Free parking spots (no other robot's rest) nearest to `cell` first. */
   private readonly parkingNear = (cell: number): number[] => {
     const { layout, distances } = this.context;
-    const toCell = distances.to(cell);
-    const spots: number[] = [];
-    for (const c of layout.parking) if (this.table.endRobot[c] < 0 && toCell[c] < unreachable) spots.push(c);
-    return spots.sort((a, b) => toCell[a] - toCell[b] || a - b);
+    return freeParkingSpots(layout, distances, this.table, cell);
   };
 
   step(tick: number, moves: Int32Array): number {
@@ -272,15 +268,12 @@ export class FlowBatch implements Policy {
     if (tick < this.parkRetryTick[robot]) return false;
     if (this.parkTriedVersion[robot] === world.version && this.parkTriedRevision[robot] === table.revision) return true;
     const cell = world.robotCell[robot];
-    const toRobot = distances.to(cell);
-    const spots: number[] = [];
-    for (const c of layout.parking) if (table.endRobot[c] < 0 && toRobot[c] < unreachable) spots.push(c);
+    const spots = freeParkingSpots(layout, distances, table, cell);
     if (spots.length === 0) {
       this.parkTriedVersion[robot] = world.version;
       this.parkTriedRevision[robot] = table.revision;
       return true;
     }
-    spots.sort((a, b) => toRobot[a] - toRobot[b] || a - b);
     table.release(robot, tick);
     for (let i = 0; i < Math.min(3, spots.length); i++) {
       const path = planRest(this.planner, robot, cell, tick, spots[i]);

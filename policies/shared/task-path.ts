@@ -7,7 +7,8 @@
  * `tick` to the end of its last handling, waits included, matching the engine's handling
  * convention (see sim/policy.ts).
  */
-import type { DistanceTables } from '../../sim/distance-table.ts';
+import { unreachable, type DistanceTables } from '../../sim/distance-table.ts';
+import type { Layout } from '../../sim/layout.ts';
 import type { ReservationTable } from '../../sim/reservation-table.ts';
 import type { SpaceTimeAStar } from '../../sim/space-time-astar.ts';
 import type { World } from '../../sim/world.ts';
@@ -116,4 +117,12 @@ export function planRest(planner: Planner, robot: number, from: number, tick: nu
     holdTicks: 0,
     restForever: true,
   });
+}
+
+/** Parking spots that are not the end of any robot's path, reachable from `from`, nearest first (ties: reading order). */
+export function freeParkingSpots(layout: Layout, distances: DistanceTables, table: ReservationTable, from: number): number[] {
+  const toFrom = distances.to(from);
+  const spots: number[] = [];
+  for (const c of layout.parking) if (table.endRobot[c] < 0 && toFrom[c] < unreachable) spots.push(c);
+  return spots.sort((a, b) => toFrom[a] - toFrom[b] || a - b);
 }

@@ -24,7 +24,7 @@ import type { Policy, PolicyContext } from '../../sim/policy.ts';
 import { ReservationTable } from '../../sim/reservation-table.ts';
 import { SpaceTimeAStar } from '../../sim/space-time-astar.ts';
 import { Phase } from '../../sim/world.ts';
-import { planRest, planTask, type Planner } from '../shared/task-path.ts';
+import { freeParkingSpots, planRest, planTask, type Planner } from '../shared/task-path.ts';
 
 export const tokenPassingOptions = z
   .object({
@@ -176,11 +176,8 @@ export class TokenPassing implements Policy {
   private park(robot: number, cell: number, tick: number): boolean | null {
     const { layout, distances } = this.context;
     const table = this.table;
-    const toRobot = distances.to(cell);
-    const spots: number[] = [];
-    for (const c of layout.parking) if (table.endRobot[c] < 0 && toRobot[c] < 0x3fffffff) spots.push(c);
+    const spots = freeParkingSpots(layout, distances, table, cell);
     if (spots.length === 0) return null;
-    spots.sort((a, b) => toRobot[a] - toRobot[b] || a - b);
     table.release(robot, tick);
     for (let i = 0; i < Math.min(3, spots.length); i++) {
       const path = planRest(this.planner, robot, cell, tick, spots[i]);
