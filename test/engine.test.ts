@@ -69,7 +69,9 @@ describe('cycle time of one robot (Groover, Automation, Production Systems and C
       warmup: 12 / 3600,
     });
     // Tc = 3 + 3.5 m / 1 m/s + 2 + 3.5 m / 1 m/s = 12 s.
-    const { summary } = summarize(scenario, runReplications(scenario), 0);
+    const records = runReplications(scenario);
+    expectClean(records);
+    const { summary } = summarize(scenario, records, 0);
     expect(summary.tickSeconds).toBe(0.5);
     expect(summary.throughputPerHour.mean).toBeCloseTo(3600 / 12, 9);
   });
@@ -182,8 +184,10 @@ describe('determinism', () => {
       hours: 3,
       replications: 2,
     };
-    const strip = (rs: ReturnType<typeof runReplications>) =>
-      JSON.stringify(rs.map(({ wallSeconds: _w, planningSeconds: _p, metrics, ...rest }) => ({ ...rest, d: Array.from(metrics.deliveries), l: metrics.leadTicks })));
+    const strip = (rs: ReturnType<typeof runReplications>) => {
+      expectClean(rs);
+      return JSON.stringify(rs.map(({ wallSeconds: _w, planningSeconds: _p, metrics, ...rest }) => ({ ...rest, d: Array.from(metrics.deliveries), l: metrics.leadTicks })));
+    };
     const a = strip(runReplications(makeScenario({ ...base, seed: 7 })));
     const b = strip(runReplications(makeScenario({ ...base, seed: 7 })));
     const c = strip(runReplications(makeScenario({ ...base, seed: 8 })));
