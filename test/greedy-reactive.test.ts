@@ -101,9 +101,10 @@ describe('greedy-reactive on the demo parcel hall', () => {
 
 /**
  * Watches greedy-reactive from outside: its decisions (every move goes to a neighbouring
- * cell that is empty at this tick and that no other robot is sent to) and, through the
- * engine's afterMotion hook, the executed positions (no two robots on one cell, and every
- * robot that moved entered a neighbouring cell no robot stood on at the previous tick).
+ * cell that no other robot is sent to, and that is empty at this tick or whose robot is
+ * sent elsewhere, not into the mover's cell) and, through the engine's afterMotion hook,
+ * the executed positions (no two robots on one cell, no two robots exchanging cells).
+ * Following into a cell vacated in the same tick is allowed (DESIGN §2).
  */
 function watchedGreedy(): { factory: PolicyFactory<any>; violations: string[]; checkMotion: (tick: number, world: World) => void; motionTicks: () => number } {
   const violations: string[] = [];
@@ -127,7 +128,10 @@ function watchedGreedy(): { factory: PolicyFactory<any>; violations: string[]; c
             let adjacent = false;
             for (let d = 0; d < 4; d++) if (layout.neighbors[from * 4 + d] === to) adjacent = true;
             if (!adjacent) violations.push(`tick ${tick}: robot ${r} sent from ${from} to non-neighbour ${to}`);
-            if (world.occupant[to] >= 0) violations.push(`tick ${tick}: robot ${r} sent into cell ${to}, occupied by robot ${world.occupant[to]}`);
+            const holder = world.occupant[to];
+            if (holder >= 0 && (moves[holder] === to || moves[holder] === from)) {
+              violations.push(`tick ${tick}: robot ${r} sent into cell ${to}, which robot ${holder} does not leave or leaves towards it`);
+            }
           }
           return next;
         },
@@ -150,10 +154,12 @@ function watchedGreedy(): { factory: PolicyFactory<any>; violations: string[]; c
       if (!world.layout.passable[c]) violations.push(`tick ${tick}: robot ${r} on blocked cell ${c}`);
     }
     if (previous) {
-      const before = new Set(previous);
+      const stoodOn = new Map<number, number>();
+      for (let r = 0; r < world.robotCount; r++) stoodOn.set(previous[r], r);
       for (let r = 0; r < world.robotCount; r++) {
-        if (world.robotCell[r] !== previous[r] && before.has(world.robotCell[r])) {
-          violations.push(`tick ${tick}: robot ${r} entered cell ${world.robotCell[r]}, which a robot stood on at the previous tick`);
+        const other = stoodOn.get(world.robotCell[r]);
+        if (world.robotCell[r] !== previous[r] && other !== undefined && other !== r && world.robotCell[other] === previous[r]) {
+          violations.push(`tick ${tick}: robots ${r} and ${other} exchanged cells ${previous[r]} and ${world.robotCell[r]}`);
         }
       }
     }

@@ -7,9 +7,11 @@
  *  - Routing: a robot follows the breadth-first distance table of its current goal,
  *    individually shortest and blind to other robots: among the neighbours one step
  *    closer, it takes the first free one in N, E, S, W order, and waits when none is free.
- *    "Free" is deliberately strict: empty at this tick and not claimed for the next tick by
- *    a robot processed earlier in this tick. Following into a cell vacated in the same tick
- *    is never done, so no vertex or swap collision can arise (the validator checks anyway).
+ *    A neighbour is free when no robot claimed it for the next tick and it is empty, or its
+ *    robot has settled on moving elsewhere this tick (following into a cell vacated in the
+ *    same tick is allowed by the model, so a queue of robots moves as one); never towards
+ *    the robot it leaves (that would be a swap). Robots that wait on an undecided robot are
+ *    settled in a second pass, repeated until nothing changes.
  *  - Rest: a robot without a task heads for the nearest parking spot (`H`) that no resting
  *    robot holds and no other robot is heading for (ties in reading order), and stays.
  *
@@ -26,7 +28,7 @@ import { z } from 'zod';
 import { CellKind } from '../../sim/layout.ts';
 import type { Policy, PolicyContext, PolicyOptionDoc } from '../../sim/policy.ts';
 import { unreachable } from '../../sim/distance-table.ts';
-import { Phase } from '../../sim/world.ts';
+import { Phase, isHandling } from '../../sim/world.ts';
 
 export const greedyReactiveOptions = z.object({}).strict();
 export type GreedyReactiveOptions = z.infer<typeof greedyReactiveOptions>;
@@ -39,6 +41,9 @@ export class GreedyReactive implements Policy {
   private readonly parkingTakenBy: Int32Array;
   /** claimedFor[c] === t + 1: a robot processed earlier at tick t moves into c at t + 1. */
   private readonly claimedFor: Int32Array;
+  /** The closer cell each robot waits to follow into this tick, or -1. */
+  private readonly waitingOn: Int32Array;
+  private readonly decidedAt: Int32Array;
   /** world.version after the last dispatch pass; -1 forces the next pass. */
   private dispatchedVersion = -1;
   private blockedSteps = 0;
@@ -49,6 +54,8 @@ export class GreedyReactive implements Policy {
     this.parkingTarget = new Int32Array(world.robotCount).fill(-1);
     this.parkingTakenBy = new Int32Array(layout.cellCount).fill(-1);
     this.claimedFor = new Int32Array(layout.cellCount).fill(-1);
+    this.waitingOn = new Int32Array(world.robotCount).fill(-1);
+    this.decidedAt = new Int32Array(world.robotCount).fill(-1);
   }
 
   step(tick: number, moves: Int32Array): number {
@@ -58,7 +65,13 @@ export class GreedyReactive implements Policy {
 
     let active = false;
     const next = tick + 1;
+    const occupant = world.occupant;
+    // Pass 1, robots in index order: move into a closer neighbour that is empty, or follow a
+    // robot that has already decided to move out of it; otherwise, if a closer neighbour is
+    // held by a robot not yet decided, wait on that robot (pass 2 settles it).
     for (let r = 0; r < robots; r++) {
+      this.decidedAt[r] = tick;
+      this.waitingOn[r] = -1;
       const phase = world.robotPhase[r];
       const cell = world.robotCell[r];
       let goal = world.goalOf(r);
@@ -74,21 +87,72 @@ export class GreedyReactive implements Policy {
       if (closer + 1 >= unreachable) continue;
       const base = cell * 4;
       let chosen = -1;
+      let wait = -1;
       for (let d = 0; d < 4; d++) {
         const n = layout.neighbors[base + d];
-        if (n < 0 || table[n] !== closer) continue;
-        if (world.occupant[n] >= 0 || this.claimedFor[n] === next) continue;
-        chosen = n;
-        break;
+        if (n < 0 || table[n] !== closer || this.claimedFor[n] === next) continue;
+        const holder = occupant[n];
+        if (holder < 0 || this.leaves(holder, n, cell, r, moves, tick)) {
+          chosen = n;
+          break;
+        }
+        if (wait < 0 && !this.settled(holder, tick) && !isHandling(world.robotPhase[holder])) wait = n;
       }
-      if (chosen < 0) {
+      if (chosen >= 0) {
+        this.claimedFor[chosen] = next;
+        moves[r] = chosen;
+      } else if (wait >= 0) {
+        this.waitingOn[r] = wait;
+      } else {
         this.blockedSteps++;
-        continue;
       }
-      this.claimedFor[chosen] = next;
-      moves[r] = chosen;
+    }
+    // Pass 2: a robot waiting on a cell follows once the robot standing there has decided to
+    // leave it (not towards the waiting robot: that would be a swap). Repeated until nothing
+    // changes; each pass settles at least the front of every queue of followers.
+    for (let changed = true; changed; ) {
+      changed = false;
+      for (let r = 0; r < robots; r++) {
+        const n = this.waitingOn[r];
+        if (n < 0) continue;
+        if (this.claimedFor[n] === next) {
+          this.waitingOn[r] = -1;
+          this.blockedSteps++;
+          continue;
+        }
+        const holder = occupant[n];
+        if (holder >= 0 && !this.leaves(holder, n, world.robotCell[r], r, moves, tick)) {
+          if (!this.settled(holder, tick)) continue; // its own move is not settled yet
+          this.waitingOn[r] = -1;
+          this.blockedSteps++;
+          continue;
+        }
+        this.claimedFor[n] = next;
+        moves[r] = n;
+        this.waitingOn[r] = -1;
+        changed = true;
+      }
+    }
+    // Whoever still waits is in a ring of followers (or behind one): all of them stay.
+    for (let r = 0; r < robots; r++) {
+      if (this.waitingOn[r] >= 0) {
+        this.waitingOn[r] = -1;
+        this.blockedSteps++;
+      }
     }
     return active ? next : Infinity;
+  }
+
+  /** True when robot `holder`'s move for this tick is final (decided and not waiting). */
+  private settled(holder: number, tick: number): boolean {
+    return this.decidedAt[holder] === tick && this.waitingOn[holder] < 0;
+  }
+
+  /** True when robot `holder`, standing on `cell`, has settled on a move to a cell other than `from` (robot r's cell: no swap). */
+  private leaves(holder: number, cell: number, from: number, r: number, moves: Int32Array, tick: number): boolean {
+    if (holder === r || !this.settled(holder, tick)) return false;
+    const target = moves[holder];
+    return target !== cell && target !== from;
   }
 
   /** Nearest open task to each idle robot, robots in index order; ties in release order. */
