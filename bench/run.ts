@@ -9,10 +9,10 @@
  *   npm run bench -- --only NAME  only rows whose name starts with NAME (engine, policy, pibt, assignment)
  */
 import { loadScenarioFile } from '../scenarios/load.ts';
-import { prepareSetup } from '../sim/experiment.ts';
+import { prepareSetup } from '../experiments/replications.ts';
 import { runReplication } from '../sim/engine.ts';
 import { policies } from '../policies/registry.ts';
-import type { Scenario } from '../scenarios/scenario.ts';
+import type { Scenario } from '../sim/model.ts';
 
 const args = process.argv.slice(2);
 const json = args.includes('--json');

@@ -1,6 +1,6 @@
 /**
  * The commander program. Commands are thin: they parse options, call library code
- * (sim/experiment.ts, reports/*) and print. Every option is declared once with its default
+ * (experiments/, reports/*) and print. Every option is declared once with its default
  * in the description. Failures map to exit codes in cli/exit.ts.
  */
 import { Command, Option } from 'commander';

@@ -7,7 +7,7 @@
  * All policies share one warm-up cut (the largest of their MSER-5 cuts), so the paired
  * windows cover the same simulated time.
  */
-import type { Scenario } from '../scenarios/scenario.ts';
+import type { Scenario } from '../sim/model.ts';
 import type { ReplicationRecord } from '../sim/engine.ts';
 import { bonferroniConfidence, pairedDifferenceInterval, welchInterval } from './stats/index.ts';
 import { summarize, warmupCut, type RunSummary, type WarmupInfo } from './summary.ts';

@@ -6,7 +6,7 @@
  * Student-t over replications; with a single replication, non-overlapping batch means of
  * the post-warm-up run (20 batches, Schmeiser 1982) instead.
  */
-import type { Scenario } from '../scenarios/scenario.ts';
+import type { Scenario } from '../sim/model.ts';
 import type { ReplicationRecord } from '../sim/engine.ts';
 import { cellLabel, CellKind, checkWellFormed, parseLayout } from '../sim/layout.ts';
 import { intervalOf, mserCut, type Interval } from './stats/index.ts';

@@ -1,5 +1,5 @@
 /** The facts `fleetwright check` reports about a scenario's layout (DESIGN §7 `check --json`). */
-import type { Scenario } from './scenario.ts';
+import type { Scenario } from '../sim/model.ts';
 import { checkWellFormed, componentLabels, parseLayout } from '../sim/layout.ts';
 
 export interface LayoutReport {

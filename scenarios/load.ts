@@ -1,6 +1,6 @@
 /**
  * Scenario loader: the YAML scenario file of DESIGN §3 (a contract) -> the normalized
- * Scenario of scenarios/scenario.ts.
+ * Scenario of sim/model.ts.
  *
  * Stages, each failing with one InputError whose message is a single line of the form
  * `<file>: <dotted.field> (line N): got <bad value>, expected <what>`:
@@ -18,7 +18,7 @@ import { isMap, isScalar, isSeq, LineCounter, parseDocument, type Document } fro
 import { z } from 'zod';
 import { InputError } from '../sim/errors.ts';
 import { CellKind, cellLabel, componentLabels, describeCell, isEndpointKind, LayoutError, parseCellLabel, parseLayout, type Layout } from '../sim/layout.ts';
-import { defaultRun, type DemandMode, type DemandSpec, type HandlingSpec, type PointChoice, type Scenario, type TraceTask } from './scenario.ts';
+import { defaultRun, type DemandMode, type DemandSpec, type HandlingSpec, type PointChoice, type Scenario, type TraceTask } from '../sim/model.ts';
 
 /** Command-line options that override scenario fields (DESIGN §7). */
 export interface ScenarioOverrides {

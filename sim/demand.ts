@@ -10,7 +10,7 @@
  * searched by bisection for discrete choices, and inversion of the cumulative rate for a
  * nonhomogeneous Poisson process with a piecewise-constant rate.
  */
-import type { HandlingSpec, PointChoice } from '../scenarios/scenario.ts';
+import type { HandlingSpec, PointChoice } from './model.ts';
 
 export type Rng = () => number;
 

@@ -13,8 +13,8 @@
  * drawn when a task is released, in release order, for the same reason.
  */
 import seedrandom from 'seedrandom';
-import type { Scenario } from '../scenarios/scenario.ts';
-import { tickSecondsOf } from '../scenarios/scenario.ts';
+import type { Scenario } from './model.ts';
+import { tickSecondsOf } from './model.ts';
 import { CellKind, type Layout } from './layout.ts';
 import type { DistanceTables } from './distance-table.ts';
 import { EventQueue } from './event-queue.ts';

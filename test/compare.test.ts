@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { loadScenarioFile } from '../scenarios/load.ts';
-import { runReplications } from '../sim/experiment.ts';
+import { runReplications } from '../experiments/replications.ts';
 import { compareRuns, type PolicyRun } from '../reports/compare.ts';
 import { tQuantile } from '../reports/stats/index.ts';
 

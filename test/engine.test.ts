@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import seedrandom from 'seedrandom';
 import { makeScenario } from './helpers.ts';
-import { runReplications } from '../sim/experiment.ts';
+import { runReplications } from '../experiments/replications.ts';
 import { summarize } from '../reports/summary.ts';
 import { EventQueue } from '../sim/event-queue.ts';
 import { CollisionValidator } from '../sim/validator.ts';

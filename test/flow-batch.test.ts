@@ -9,7 +9,7 @@
 import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
 import { loadScenarioFile } from '../scenarios/load.ts';
-import type { Scenario } from '../scenarios/scenario.ts';
+import type { Scenario } from '../sim/model.ts';
 import { DistanceTables } from '../sim/distance-table.ts';
 import { runReplication, type ReplicationRecord } from '../sim/engine.ts';
 import { checkWellFormed, parseLayout, type Layout } from '../sim/layout.ts';

@@ -2,7 +2,7 @@ import path from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { greedyReactive } from '../policies/greedy-reactive/index.ts';
 import { runReplication, type ReplicationRecord } from '../sim/engine.ts';
-import { prepareSetup } from '../sim/experiment.ts';
+import { prepareSetup } from '../experiments/replications.ts';
 import type { PolicyFactory } from '../sim/policy.ts';
 import type { World } from '../sim/world.ts';
 import { loadScenarioFile } from '../scenarios/load.ts';

@@ -1,6 +1,6 @@
 /** Scenario objects built in code for tests (no file, no loader). */
-import type { Scenario, DemandSpec, HandlingSpec } from '../scenarios/scenario.ts';
-import { defaultRun } from '../scenarios/scenario.ts';
+import type { Scenario, DemandSpec, HandlingSpec } from '../sim/model.ts';
+import { defaultRun } from '../sim/model.ts';
 
 export function makeScenario(parts: {
   layout: string;

@@ -3,7 +3,7 @@ import { describe, expect, it } from 'vitest';
 import { pibt } from '../policies/pibt/index.ts';
 import { generateSortationHall } from '../scenarios/generate.ts';
 import { loadScenarioFile } from '../scenarios/load.ts';
-import type { Scenario } from '../scenarios/scenario.ts';
+import type { Scenario } from '../sim/model.ts';
 import { DistanceTables } from '../sim/distance-table.ts';
 import { runReplication, type ReplicationRecord } from '../sim/engine.ts';
 import { InputError } from '../sim/errors.ts';

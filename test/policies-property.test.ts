@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import seedrandom from 'seedrandom';
 import { makeScenario } from './helpers.ts';
-import { runReplications } from '../sim/experiment.ts';
+import { runReplications } from '../experiments/replications.ts';
 import { buildLayout, CellKind, checkWellFormed, componentLabels } from '../sim/layout.ts';
 import { policies } from '../policies/registry.ts';
 

@@ -1,10 +1,10 @@
 import { describe, expect, it } from 'vitest';
 import seedrandom from 'seedrandom';
 import { loadScenarioFile } from '../scenarios/load.ts';
-import { runReplications } from '../sim/experiment.ts';
+import { runReplications } from '../experiments/replications.ts';
 import { parseLayout } from '../sim/layout.ts';
 import { Phase } from '../sim/world.ts';
-import type { TraceTask } from '../scenarios/scenario.ts';
+import type { TraceTask } from '../sim/model.ts';
 
 // Goods-to-person round trips: a shelf goes from its storage point to a pick station and back
 // to the same storage point; the robot is busy for the whole cycle.

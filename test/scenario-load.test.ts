@@ -5,7 +5,7 @@ import seedrandom from 'seedrandom';
 import { afterAll, describe, expect, it } from 'vitest';
 import { InputError } from '../sim/errors.ts';
 import { loadScenarioFile, parseScenarioText, type ScenarioOverrides } from '../scenarios/load.ts';
-import { defaultRun } from '../scenarios/scenario.ts';
+import { defaultRun } from '../sim/model.ts';
 
 const root = mkdtempSync(path.join(os.tmpdir(), 'fleetwright-scenario-load-'));
 afterAll(() => rmSync(root, { recursive: true, force: true }));

@@ -1,10 +1,10 @@
 import { describe, expect, it } from 'vitest';
 import seedrandom from 'seedrandom';
 import { makeScenario } from './helpers.ts';
-import { runReplications } from '../sim/experiment.ts';
+import { runReplications } from '../experiments/replications.ts';
 import { loadScenarioFile } from '../scenarios/load.ts';
 import { checkWellFormed, parseLayout } from '../sim/layout.ts';
-import type { TraceTask } from '../scenarios/scenario.ts';
+import type { TraceTask } from '../sim/model.ts';
 
 // One-lane corridor (row 2) with one side pocket at (5,3). Robot 0 starts on H(1,1), robot 1
 // on H(8,1). Task A: P(2,1) -> D(6,1); task B: P(7,1) -> D(3,1): the robots must pass each

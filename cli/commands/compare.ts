@@ -2,7 +2,7 @@
 import path from 'node:path';
 import { stringify } from 'csv-stringify/sync';
 import { loadScenarioFile, type ScenarioOverrides } from '../../scenarios/load.ts';
-import { prepareSetup } from '../../sim/experiment.ts';
+import { prepareSetup } from '../../experiments/replications.ts';
 import { runReplication, type ReplicationRecord } from '../../sim/engine.ts';
 import { compareRuns, type PolicyRun } from '../../reports/compare.ts';
 import { renderComparison } from '../../reports/compare-table.ts';

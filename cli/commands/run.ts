@@ -1,7 +1,7 @@
 /** `fleetwright run`: replications of one scenario, a table or one JSON document, optional result files. */
 import path from 'node:path';
 import { loadScenarioFile, type ScenarioOverrides } from '../../scenarios/load.ts';
-import { prepareSetup } from '../../sim/experiment.ts';
+import { prepareSetup } from '../../experiments/replications.ts';
 import { runReplication, type ReplicationRecord } from '../../sim/engine.ts';
 import { summarize, toJson } from '../../reports/summary.ts';
 import { renderRunTable } from '../../reports/console-table.ts';

@@ -3,10 +3,10 @@
  * tables, policy factory) and runs replication 0..n-1, each with its own random streams.
  * Library code beside the engine; the CLI's `run` and `compare` are thin wrappers over it.
  */
-import type { Scenario } from '../scenarios/scenario.ts';
-import { parseLayout } from './layout.ts';
-import { DistanceTables } from './distance-table.ts';
-import { runReplication, type ReplicationHooks, type ReplicationRecord, type SimulationSetup } from './engine.ts';
+import type { Scenario } from '../sim/model.ts';
+import { parseLayout } from '../sim/layout.ts';
+import { DistanceTables } from '../sim/distance-table.ts';
+import { runReplication, type ReplicationHooks, type ReplicationRecord, type SimulationSetup } from '../sim/engine.ts';
 import { findPolicy, parsePolicyOptions } from '../policies/registry.ts';
 
 /** `policyField` names where the policy came from in error messages (a file field or `--policy`). */
