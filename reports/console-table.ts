@@ -43,23 +43,40 @@ export function renderColumns(rows: string[][], header?: string[]): string {
 export function describeWarmup(summary: RunSummary): string {
   const w = summary.warmup;
   const hours = (w.seconds / 3600).toFixed(2);
-  const how = w.method === 'mser-5' ? 'MSER-5' : 'fixed';
-  return `warm-up ${hours} h (${how})${w.tooShort ? ' - MSER-5 cut near half the run: lengthen --hours for a trustworthy steady state' : ''}`;
+  const how = w.method === 'mser-5' ? 'MSER-5' : w.method === 'fixed' ? 'fixed' : 'none';
+  const note = w.note !== null ? ` - ${w.note}` : '';
+  return `warm-up ${hours} h (${how})${note}${w.tooShort ? ' - MSER-5 cut near half the run: lengthen --hours for a trustworthy steady state' : ''}`;
+}
+
+const signed = (v: number, digits = 1): string => `${v >= 0 ? '+' : ''}${v.toFixed(digits)}`;
+
+/** The stability verdict in one line: a warning for an unstable run. */
+export function describeStability(summary: RunSummary): string {
+  const pct = Math.round(summary.confidence * 100);
+  const g = summary.backlogGrowthPerHour;
+  const range = g.low !== null && g.high !== null ? `, ${pct}% interval ${signed(g.low)} .. ${signed(g.high)}` : '';
+  if (summary.stable === null) return 'backlog: not assessed (saturated demand keeps an artificial pool of tasks: a capacity run)';
+  if (summary.stable) {
+    return `backlog: bounded (trend ${Number.isFinite(g.mean) ? signed(g.mean) : '-'} tasks/h after the warm-up${range})`;
+  }
+  return `warning: UNSTABLE - the backlog grows by about ${signed(g.mean, 0)} tasks/h${range}: demand exceeds what this fleet delivers. Lead times count the ages of tasks still open, are lower bounds and have no interval`;
 }
 
 export function renderRunTable(summary: RunSummary): string {
   const pct = Math.round(summary.confidence * 100);
-  const how = summary.intervalMethod === 'replications' ? `over ${summary.replications} replications` : 'by batch means of one replication';
+  const how = summary.intervalMethod === 'replications' ? `over ${summary.replications} replications` : 'by batch means of one replication (lag-1 checked); deadlocks per replication';
+  const open = summary.leadTimeIncludesOpenTasks ? ' (incl. open)' : '';
   const lines: string[] = [];
   lines.push(`${summary.scenario} | ${summary.policy} | ${summary.robots} robots | ${summary.replications} x ${summary.hours} h | seed ${summary.seed}`);
   lines.push(`${describeWarmup(summary)}; ${pct}% intervals ${how}`);
   lines.push('');
   const rows = [
     intervalRow('throughput (tasks/h)', summary.throughputPerHour, 'rate'),
-    intervalRow('lead time, mean (s)', summary.leadTimeSeconds, 'seconds'),
-    intervalRow('lead time, p50 (s)', summary.leadTimeP50Seconds, 'seconds'),
-    intervalRow('lead time, p95 (s)', summary.leadTimeP95Seconds, 'seconds'),
+    intervalRow(`lead time, mean (s)${open}`, summary.leadTimeSeconds, 'seconds'),
+    intervalRow(`lead time, p50 (s)${open}`, summary.leadTimeP50Seconds, 'seconds'),
+    intervalRow(`lead time, p95 (s)${open}`, summary.leadTimeP95Seconds, 'seconds'),
     intervalRow('tasks in system', summary.tasksInSystem, 'count'),
+    intervalRow('backlog growth (tasks/h)', summary.backlogGrowthPerHour, 'rate'),
     intervalRow('station idle', summary.stationIdleFraction, 'percent'),
     intervalRow('station starved', summary.stationStarvedFraction, 'percent'),
     intervalRow('robot time: loaded travel', summary.robotTime.loaded, 'percent'),
@@ -67,16 +84,24 @@ export function renderRunTable(summary: RunSummary): string {
     intervalRow('robot time: handling', summary.robotTime.handling, 'percent'),
     intervalRow('robot time: waiting/blocked', summary.robotTime.waiting, 'percent'),
     intervalRow('robot time: parked', summary.robotTime.parked, 'percent'),
-    intervalRow('deadlock episodes', summary.deadlocks, 'count'),
-    intervalRow('robot-hours lost to deadlocks', summary.deadlockRobotHoursLost, 'hours'),
+    intervalRow('deadlock episodes (per replication)', summary.deadlocks, 'count'),
+    intervalRow('robot-hours lost to deadlocks (per rep.)', summary.deadlockRobotHoursLost, 'hours'),
   ];
   lines.push(renderColumns(rows, ['metric', 'mean', `± half-width`, `${pct}% interval`]));
   lines.push('');
   lines.push(
     `collisions ${summary.collisions} | tasks released ${summary.tasks.released}, delivered ${summary.tasks.delivered}, open at end ${summary.tasks.open} (all replications, whole run)`,
   );
+  lines.push(describeStability(summary));
+  if (summary.batchMeans !== null && summary.batchMeans.unreliable.length > 0) {
+    lines.push(
+      `note: batch-means intervals not reliable for ${summary.batchMeans.unreliable.join(', ')} (lag-1 correlation of batch means still above ${summary.batchMeans.maximumLag1} at ${summary.batchMeans.minimumBatches} batches); use --reps 2 or more, or a longer run`,
+    );
+  }
   const little = summary.littlesLaw;
-  if (Number.isFinite(little.tasksInSystem) && Number.isFinite(little.throughputTimesLeadTime)) {
+  if (!little.applicable) {
+    if (summary.stable === false) lines.push("Little's law check: not applicable (the backlog grows; no steady state)");
+  } else if (Number.isFinite(little.tasksInSystem) && Number.isFinite(little.throughputTimesLeadTime)) {
     lines.push(
       `Little's law check: tasks in system ${little.tasksInSystem.toFixed(2)} vs throughput x lead time ${little.throughputTimesLeadTime.toFixed(2)} (gap ${(little.relativeGap * 100).toFixed(1)}%${little.relativeGap > 0.1 ? '; a large gap means the run is not in steady state or demand exceeds capacity' : ''})`,
     );

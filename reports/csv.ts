@@ -4,12 +4,13 @@
  */
 import { stringify } from 'csv-stringify/sync';
 import type { ReplicationRecord } from '../sim/engine.ts';
-import type { WindowMetrics } from './window-metrics.ts';
-import type { RunSummary } from './summary.ts';
+import type { ReplicationMetrics, RunSummary } from './summary.ts';
 
 const round = (v: number, digits = 6): number | string => (Number.isFinite(v) ? Number(v.toFixed(digits)) : '');
 
-export function replicationsCsv(records: ReplicationRecord[], perReplication: WindowMetrics[]): string {
+const roundOrEmpty = (v: number | null): number | string => (v === null ? '' : round(v));
+
+export function replicationsCsv(records: ReplicationRecord[], perReplication: ReplicationMetrics[]): string {
   const rows = records.map((record, i) => {
     const w = perReplication[i];
     return {
@@ -19,6 +20,13 @@ export function replicationsCsv(records: ReplicationRecord[], perReplication: Wi
       leadTimeP50Seconds: round(w.leadTimeP50Seconds),
       leadTimeP95Seconds: round(w.leadTimeP95Seconds),
       tasksInSystem: round(w.tasksInSystem),
+      // Empty for saturated (capacity) runs; lead times of an unstable run count its open tasks' ages.
+      // Written out: csv-stringify would print false as an empty cell.
+      stable: w.stable === null ? '' : String(w.stable),
+      backlogGrowthPerHour: round(w.backlogGrowthPerHour),
+      backlogGrowthLow: roundOrEmpty(w.backlogGrowthLow),
+      backlogGrowthHigh: roundOrEmpty(w.backlogGrowthHigh),
+      openTasksInLeadTime: w.openTasksCounted,
       stationIdleFraction: round(w.stationIdleFraction),
       stationStarvedFraction: round(w.stationStarvedFraction),
       robotLoadedFraction: round(w.robotTime.loaded),

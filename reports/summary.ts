@@ -2,23 +2,57 @@
  * From replication records to the run summary of DESIGN §7 (`run --json`).
  *
  * Warm-up: MSER-5 (White 1997; White, Cobb & Spratt 2000) on the throughput series averaged
- * over replications, one cut for all of them, or a fixed number of hours. Intervals:
- * Student-t over replications; with a single replication, non-overlapping batch means of
- * the post-warm-up run (20 batches, Schmeiser 1982) instead.
+ * over replications, one cut for all of them, or a fixed number of hours; no automatic cut
+ * when demand varies in time (an hourly profile, a trace), since MSER-5 would cut the
+ * demand's own variation. A cut that leaves no delivery fails the run (RunError).
+ *
+ * Intervals: Student-t over replications. With a single replication, batch means of the
+ * post-warm-up run instead (reports/stats/batch-means-interval.ts: 40 batches merged while
+ * their lag-1 correlation is above 0.2, flagged unreliable if it stays so at 10), centred
+ * on the whole run's value. Deadlock episodes and robot-hours lost are counts per
+ * replication: with one replication, the count and no interval. Fractions are clipped to
+ * [0, 1] and counts, rates and times to >= 0 (reports/stats/clip-interval.ts).
+ *
+ * Stability (reports/stability.ts): every Poisson and trace run says whether its backlog
+ * is bounded; an unstable run's lead times count the ages of tasks still open and get no
+ * interval (they are lower bounds).
  */
 import type { Scenario } from '../sim/model.ts';
 import type { ReplicationRecord } from '../sim/engine.ts';
+import { RunError } from '../sim/errors.ts';
 import { cellLabel, CellKind, checkWellFormed, parseLayout } from '../sim/layout.ts';
-import { intervalOf, mserCut, type Interval } from './stats/index.ts';
+import { batchMeansInterval, batchMeansRule, clipInterval, intervalOf, mserCut, type Interval } from './stats/index.ts';
 import { windowMetrics, type WindowMetrics } from './window-metrics.ts';
+import { assessStability, type StabilityReport } from './stability.ts';
 import { safetyNote } from './safety.ts';
 
 export interface WarmupInfo {
-  method: 'mser-5' | 'fixed';
+  /** `none`: no automatic cut because demand varies in time (see `note`). */
+  method: 'mser-5' | 'fixed' | 'none';
   seconds: number;
   intervals: number;
   /** MSER-5 found its minimum near half the run: the run is too short to trust the cut. */
   tooShort: boolean;
+  /** Why the cut is what it is when that is not obvious, else null. */
+  note: string | null;
+}
+
+/** How a single replication's batch-means interval of one metric came out (lag-1 check). */
+export interface BatchMeansCheck {
+  initialBatches: number;
+  initialLag1: number;
+  initialHalfWidth: number | null;
+  batches: number;
+  lag1: number;
+  halfWidth: number | null;
+  reliable: boolean;
+}
+
+export interface StabilitySummary {
+  materialGrowthPerHour: number;
+  fromSeconds: number;
+  toSeconds: number;
+  perReplication: { replication: number; stable: boolean; growthPerHour: number; low: number | null; high: number | null; batches: number; reliable: boolean }[];
 }
 
 export interface RunSummary {
@@ -37,15 +71,25 @@ export interface RunSummary {
   leadTimeSeconds: Interval;
   leadTimeP50Seconds: Interval;
   leadTimeP95Seconds: Interval;
+  /** Lead times include the ages of tasks still open at the end (unstable runs): lower bounds, no interval. */
+  leadTimeIncludesOpenTasks: boolean;
   tasksInSystem: Interval;
+  /** Bounded backlog (no material, significant growth of tasks in system after the warm-up); null for saturated (capacity) runs. */
+  stable: boolean | null;
+  /** Trend of tasks in system after the warm-up, tasks per hour. */
+  backlogGrowthPerHour: Interval;
+  stability: StabilitySummary;
   robotTime: { loaded: Interval; empty: Interval; handling: Interval; waiting: Interval; parked: Interval };
+  /** Per replication, always (with one replication: the count, no interval). */
   deadlocks: Interval;
   deadlockRobotHoursLost: Interval;
   collisions: number;
   tasks: { released: number; delivered: number; open: number };
   warmupSeconds: number;
   warmup: WarmupInfo;
-  littlesLaw: { tasksInSystem: number; throughputTimesLeadTime: number; relativeGap: number };
+  /** One replication: the lag-1 check of each metric's batch means; null over replications. */
+  batchMeans: { maximumLag1: number; minimumBatches: number; unreliable: string[]; metrics: Record<string, BatchMeansCheck> } | null;
+  littlesLaw: { applicable: boolean; tasksInSystem: number; throughputTimesLeadTime: number; relativeGap: number };
   stations: { cell: string; kind: 'pickup' | 'drop'; idleFraction: number; starvedFraction: number }[];
   /** Well-formedness of the floor for this fleet (Ma et al. 2017); planned policies need it to finish every task. */
   wellFormed: boolean;
@@ -55,11 +99,29 @@ export interface RunSummary {
   timing: { wallSeconds: number; agentStepsPerSecond: number; planningSeconds: number; planningSecondsPerSimulatedHour: number; planningShare: number };
 }
 
+/** One replication's metrics after the warm-up, with its own stability verdict. */
+export interface ReplicationMetrics extends WindowMetrics {
+  replication: number;
+  /** null for saturated (capacity) runs. */
+  stable: boolean | null;
+  backlogGrowthPerHour: number;
+  backlogGrowthLow: number | null;
+  backlogGrowthHigh: number | null;
+}
+
 export interface SummaryParts {
   summary: RunSummary;
   /** Metrics per replication after the warm-up (the rows of replications.csv, the input of paired comparisons). */
-  perReplication: WindowMetrics[];
+  perReplication: ReplicationMetrics[];
   cutIntervals: number;
+}
+
+/** Demand that changes in time on purpose: an automatic cut would remove part of it. */
+function timeVaryingDemand(scenario: Scenario): string | null {
+  const demand = scenario.demand;
+  if (demand.kind === 'trace') return 'demand is a trace';
+  if (demand.kind === 'poisson' && demand.profile !== null && demand.profile.some((v) => v !== demand.profile![0])) return 'demand has an hourly profile';
+  return null;
 }
 
 export function warmupCut(scenario: Scenario, records: ReplicationRecord[]): WarmupInfo {
@@ -67,42 +129,124 @@ export function warmupCut(scenario: Scenario, records: ReplicationRecord[]): War
   const intervalSeconds = m.intervalTicks * records[0].tickSeconds;
   if (scenario.run.warmup !== 'auto') {
     const intervals = Math.min(m.intervalCount - 1, Math.round((scenario.run.warmup * 3600) / intervalSeconds));
-    return { method: 'fixed', seconds: intervals * intervalSeconds, intervals, tooShort: false };
+    return { method: 'fixed', seconds: intervals * intervalSeconds, intervals, tooShort: false, note: null };
+  }
+  const varying = timeVaryingDemand(scenario);
+  if (varying !== null) {
+    // MSER-5 reads a quiet first hour as a transient and cuts it (throughput over the rest is then too high).
+    return { method: 'none', seconds: 0, intervals: 0, tooShort: false, note: `${varying}: no automatic warm-up cut (set run.warmup or --warmup to cut)` };
   }
   // Whole intervals only: a partial last interval would distort the series.
   const full = Math.floor(records[0].endTick / m.intervalTicks);
   const series: number[] = new Array(full).fill(0);
   for (const record of records) for (let i = 0; i < full; i++) series[i] += record.metrics.deliveries[i] / records.length;
   const cut = mserCut(series, 5);
-  return { method: 'mser-5', seconds: cut.cutObservations * intervalSeconds, intervals: cut.cutObservations, tooShort: cut.tooShort };
+  return { method: 'mser-5', seconds: cut.cutObservations * intervalSeconds, intervals: cut.cutObservations, tooShort: cut.tooShort, note: null };
 }
 
-/** `warmupOverride` imposes one cut on several runs (a comparison aligns its windows). */
+type Bounds = 'fraction' | 'nonNegative' | 'none';
+
+function bounded(interval: Interval, bounds: Bounds): Interval {
+  if (bounds === 'fraction') return clipInterval(interval, 0, 1);
+  if (bounds === 'nonNegative') return clipInterval(interval, 0, Infinity);
+  return interval;
+}
+
+const noInterval = (mean: number, n: number): Interval => ({ mean, halfWidth: null, low: null, high: null, n });
+
+/**
+ * The batches of a single replication's post-warm-up run at the finest level of the
+ * batch-means check: up to `batchMeansRule.initialBatches` equal batches of whole intervals,
+ * leftover intervals dropped at the start (next to the cut), a partial last interval left out.
+ */
+function finestBatches(record: ReplicationRecord, cutIntervals: number): WindowMetrics[] {
+  const full = Math.floor(record.endTick / record.metrics.intervalTicks);
+  const remaining = full - cutIntervals;
+  const count = Math.min(batchMeansRule.initialBatches, remaining);
+  if (count < 2) return [];
+  const size = Math.floor(remaining / count);
+  const start = full - count * size;
+  const batches: WindowMetrics[] = [];
+  for (let b = 0; b < count; b++) batches.push(windowMetrics(record, start + b * size, start + (b + 1) * size));
+  return batches;
+}
+
+/** `warmupOverride` imposes one cut on several runs. */
 export function summarize(scenario: Scenario, records: ReplicationRecord[], wallSeconds: number, warmupOverride?: WarmupInfo): SummaryParts {
   const warmup = warmupOverride ?? warmupCut(scenario, records);
   const intervalCount = records[0].metrics.intervalCount;
-  const perReplication = records.map((r) => windowMetrics(r, warmup.intervals, intervalCount));
   const confidence = scenario.run.confidence;
+  let windows = records.map((r) => windowMetrics(r, warmup.intervals, intervalCount));
+
+  const deliveredAfter = windows.reduce((s, w) => s + w.delivered, 0);
+  const deliveredBefore = records.reduce((s, r) => {
+    let sum = 0;
+    for (let i = 0; i < warmup.intervals; i++) sum += r.metrics.deliveries[i];
+    return s + sum;
+  }, 0);
+  if (deliveredAfter === 0 && deliveredBefore > 0) {
+    throw new RunError(
+      `policy ${scenario.policy.name}: the warm-up cut of ${(warmup.seconds / 3600).toFixed(2)} h (${warmup.method}) leaves no delivery to measure (${deliveredBefore} tasks delivered before it, none after, over ${records.length} replication${records.length === 1 ? '' : 's'}); set --warmup 0 or a shorter cut, or run longer`,
+    );
+  }
+
+  const stability: StabilityReport = assessStability(scenario, records, warmup.intervals, windows.map((w) => w.throughputPerHour));
+  const unstable = stability.stable === false;
+  // An unstable run's delivered tasks are the lucky ones: count the waiting ones' ages too.
+  if (unstable) windows = records.map((r) => windowMetrics(r, warmup.intervals, intervalCount, true));
+  const perReplication: ReplicationMetrics[] = windows.map((w, i) => {
+    const trend = stability.perReplication[i];
+    return {
+      ...w,
+      replication: records[i].replication,
+      stable: stability.stable === null ? null : trend.stable,
+      backlogGrowthPerHour: trend?.growthPerHour ?? NaN,
+      backlogGrowthLow: trend?.low ?? null,
+      backlogGrowthHigh: trend?.high ?? null,
+    };
+  });
 
   // The samples each interval is built from: one per replication, or batches of one long run.
-  let samples: WindowMetrics[] = perReplication;
-  let intervalMethod: RunSummary['intervalMethod'] = 'replications';
-  if (records.length === 1) {
-    const remaining = intervalCount - warmup.intervals;
-    const batches = Math.min(20, remaining);
-    if (batches >= 2) {
-      intervalMethod = 'batch-means';
-      const size = Math.floor(remaining / batches);
-      // Leftover intervals dropped at the start, next to the warm-up cut.
-      const start = intervalCount - batches * size;
-      samples = [];
-      for (let b = 0; b < batches; b++) samples.push(windowMetrics(records[0], start + b * size, start + (b + 1) * size));
+  const batches = records.length === 1 ? finestBatches(records[0], warmup.intervals) : [];
+  const intervalMethod: RunSummary['intervalMethod'] = batches.length >= 2 ? 'batch-means' : 'replications';
+  const batchChecks: Record<string, BatchMeansCheck> = {};
+
+  /** Over replications (t), or over batch means of the one replication, centred on its whole-window value. */
+  const interval = (name: string, pick: (w: WindowMetrics) => number, bounds: Bounds): Interval => {
+    if (intervalMethod === 'replications') {
+      const values = perReplication.map(pick).filter((v) => Number.isFinite(v));
+      if (values.length === 0) return noInterval(NaN, 0);
+      return bounded(intervalOf(values, confidence), bounds);
     }
-  }
-  const interval = (pick: (w: WindowMetrics) => number): Interval => {
-    const values = samples.map(pick).filter((v) => Number.isFinite(v));
-    if (values.length === 0) return { mean: NaN, halfWidth: null, low: null, high: null, n: 0 };
-    return intervalOf(values, confidence);
+    const whole = pick(perReplication[0]);
+    const values = batches.map(pick).filter((v) => Number.isFinite(v));
+    if (!Number.isFinite(whole)) return noInterval(NaN, 0);
+    if (values.length < 2) return noInterval(whole, 1);
+    const check = batchMeansInterval(values, confidence);
+    const halfWidth = check.interval.halfWidth;
+    batchChecks[name] = {
+      initialBatches: check.initialBatches,
+      initialLag1: check.initialLag1,
+      initialHalfWidth: check.initialHalfWidth,
+      batches: check.batches,
+      lag1: check.lag1,
+      halfWidth,
+      reliable: check.reliable,
+    };
+    const result = halfWidth === null ? noInterval(whole, check.batches) : { mean: whole, halfWidth, low: whole - halfWidth, high: whole + halfWidth, n: check.batches };
+    return bounded(result, bounds);
+  };
+  /** Counts per replication: never per batch, so one replication gives the count and no interval. */
+  const perReplicationInterval = (pick: (w: WindowMetrics) => number, bounds: Bounds): Interval => {
+    const values = perReplication.map(pick).filter((v) => Number.isFinite(v));
+    if (values.length === 0) return noInterval(NaN, 0);
+    return bounded(intervalOf(values, confidence), bounds);
+  };
+  /** Lead times: an unstable run's are lower bounds and get no interval. */
+  const leadInterval = (name: string, pick: (w: WindowMetrics) => number): Interval => {
+    if (!unstable) return interval(name, pick, 'nonNegative');
+    const values = perReplication.map(pick).filter((v) => Number.isFinite(v));
+    return noInterval(mean(values), values.length);
   };
 
   const layout = parseLayout(scenario.layoutText);
@@ -115,9 +259,9 @@ export function summarize(scenario: Scenario, records: ReplicationRecord[], wall
     starvedFraction: mean(perReplication.map((w) => w.stationStarved[s])),
   }));
 
-  const throughput = interval((w) => w.throughputPerHour);
-  const lead = interval((w) => w.leadTimeSeconds);
-  const inSystem = interval((w) => w.tasksInSystem);
+  const throughput = interval('throughputPerHour', (w) => w.throughputPerHour, 'nonNegative');
+  const lead = leadInterval('leadTimeSeconds', (w) => w.leadTimeSeconds);
+  const inSystem = interval('tasksInSystem', (w) => w.tasksInSystem, 'nonNegative');
   const littleRight = (throughput.mean / 3600) * lead.mean;
   const agentSteps = records.reduce((s, r) => s + r.agentSteps, 0);
   const planningSeconds = records.reduce((s, r) => s + r.planningSeconds, 0);
@@ -134,21 +278,38 @@ export function summarize(scenario: Scenario, records: ReplicationRecord[], wall
     tickSeconds: records[0].tickSeconds,
     intervalMethod,
     throughputPerHour: throughput,
-    stationIdleFraction: interval((w) => w.stationIdleFraction),
-    stationStarvedFraction: interval((w) => w.stationStarvedFraction),
+    stationIdleFraction: interval('stationIdleFraction', (w) => w.stationIdleFraction, 'fraction'),
+    stationStarvedFraction: interval('stationStarvedFraction', (w) => w.stationStarvedFraction, 'fraction'),
     leadTimeSeconds: lead,
-    leadTimeP50Seconds: interval((w) => w.leadTimeP50Seconds),
-    leadTimeP95Seconds: interval((w) => w.leadTimeP95Seconds),
+    leadTimeP50Seconds: leadInterval('leadTimeP50Seconds', (w) => w.leadTimeP50Seconds),
+    leadTimeP95Seconds: leadInterval('leadTimeP95Seconds', (w) => w.leadTimeP95Seconds),
+    leadTimeIncludesOpenTasks: unstable,
     tasksInSystem: inSystem,
-    robotTime: {
-      loaded: interval((w) => w.robotTime.loaded),
-      empty: interval((w) => w.robotTime.empty),
-      handling: interval((w) => w.robotTime.handling),
-      waiting: interval((w) => w.robotTime.waiting),
-      parked: interval((w) => w.robotTime.parked),
+    stable: stability.stable,
+    backlogGrowthPerHour: stability.backlogGrowthPerHour,
+    stability: {
+      materialGrowthPerHour: stability.materialGrowthPerHour,
+      fromSeconds: stability.fromSeconds,
+      toSeconds: stability.toSeconds,
+      perReplication: stability.perReplication.map((t) => ({
+        replication: t.replication,
+        stable: t.stable,
+        growthPerHour: t.growthPerHour,
+        low: t.low,
+        high: t.high,
+        batches: t.batches,
+        reliable: t.reliable,
+      })),
     },
-    deadlocks: interval((w) => w.deadlocks),
-    deadlockRobotHoursLost: interval((w) => w.deadlockRobotHoursLost),
+    robotTime: {
+      loaded: interval('robotTime.loaded', (w) => w.robotTime.loaded, 'fraction'),
+      empty: interval('robotTime.empty', (w) => w.robotTime.empty, 'fraction'),
+      handling: interval('robotTime.handling', (w) => w.robotTime.handling, 'fraction'),
+      waiting: interval('robotTime.waiting', (w) => w.robotTime.waiting, 'fraction'),
+      parked: interval('robotTime.parked', (w) => w.robotTime.parked, 'fraction'),
+    },
+    deadlocks: perReplicationInterval((w) => w.deadlocks, 'nonNegative'),
+    deadlockRobotHoursLost: perReplicationInterval((w) => w.deadlockRobotHoursLost, 'nonNegative'),
     collisions: records.reduce((s, r) => s + r.collisions, 0),
     tasks: {
       released: records.reduce((s, r) => s + r.released, 0),
@@ -157,7 +318,19 @@ export function summarize(scenario: Scenario, records: ReplicationRecord[], wall
     },
     warmupSeconds: warmup.seconds,
     warmup,
+    batchMeans:
+      intervalMethod === 'batch-means'
+        ? {
+            maximumLag1: batchMeansRule.maximumLag1,
+            minimumBatches: batchMeansRule.minimumBatches,
+            unreliable: Object.entries(batchChecks)
+              .filter(([, c]) => !c.reliable)
+              .map(([name]) => name),
+            metrics: batchChecks,
+          }
+        : null,
     littlesLaw: {
+      applicable: stability.stable === true,
       tasksInSystem: inSystem.mean,
       throughputTimesLeadTime: littleRight,
       relativeGap: Math.abs(inSystem.mean - littleRight) / Math.max(1e-12, Math.abs(inSystem.mean)),

@@ -20,12 +20,20 @@ export interface WindowMetrics {
   deadlocks: number;
   deadlockRobotHoursLost: number;
   delivered: number;
+  /** Tasks still open at the end whose ages entered the lead times (0 unless asked for). */
+  openTasksCounted: number;
   /** Per station (in record.stationCells order). */
   stationIdle: number[];
   stationStarved: number[];
 }
 
-export function windowMetrics(record: ReplicationRecord, from: number, to: number): WindowMetrics {
+/**
+ * `countOpenTasks`: for a window that ends at the end of the run, lead times also count the
+ * age of every task still open then (its lead time so far, a lower bound of its real one).
+ * An unstable run's lead time from delivered tasks alone is biased low: the tasks that wait
+ * longest are the ones never delivered.
+ */
+export function windowMetrics(record: ReplicationRecord, from: number, to: number, countOpenTasks = false): WindowMetrics {
   const m = record.metrics;
   const tickSeconds = record.tickSeconds;
   const fromTick = from * m.intervalTicks;
@@ -64,7 +72,12 @@ export function windowMetrics(record: ReplicationRecord, from: number, to: numbe
   // Lead times of tasks delivered inside the window (delivery ticks are sorted).
   const lo = lowerBound(m.deliveryTicks, fromTick);
   const hi = lowerBound(m.deliveryTicks, toTick);
-  const leads = Float64Array.from(m.leadTicks.slice(lo, hi)).sort();
+  const deliveredLeads = m.leadTicks.slice(lo, hi);
+  const open = countOpenTasks ? record.openTaskReleaseTicks.filter((release) => release < toTick) : [];
+  const leads = new Float64Array(deliveredLeads.length + open.length);
+  leads.set(deliveredLeads);
+  for (let i = 0; i < open.length; i++) leads[deliveredLeads.length + i] = toTick - open[i];
+  leads.sort();
   let leadSum = 0;
   for (const v of leads) leadSum += v;
   const leadMean = leads.length > 0 ? (leadSum / leads.length) * tickSeconds : NaN;
@@ -98,6 +111,7 @@ export function windowMetrics(record: ReplicationRecord, from: number, to: numbe
     deadlocks,
     deadlockRobotHoursLost: (lostTicks * tickSeconds) / 3600,
     delivered,
+    openTasksCounted: open.length,
     stationIdle,
     stationStarved,
   };

@@ -60,6 +60,8 @@ export interface ReplicationRecord {
   shelvesAccounted: number;
   /** Shelves standing on their storage points at the end (round trips). */
   shelvesAtStorage: number;
+  /** Release ticks of the tasks not delivered at the end of the run, ascending: lead time of an unstable run counts their ages. */
+  openTaskReleaseTicks: number[];
 }
 
 export interface ReplicationHooks {
@@ -542,6 +544,9 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
   checkConservation(endTick);
   let home = 0;
   for (const c of layout.storage) home += shelfHome[c];
+  const openTaskReleaseTicks: number[] = [];
+  for (let task = 0; task < world.taskCount; task++) if (world.taskState[task] !== TaskState.Delivered) openTaskReleaseTicks.push(world.taskRelease[task]);
+  openTaskReleaseTicks.sort((a, b) => a - b);
 
   return {
     replication,
@@ -565,6 +570,7 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     policyCounters: policy.counters?.() ?? {},
     shelvesAccounted: home + shelvesOnRobots,
     shelvesAtStorage: home,
+    openTaskReleaseTicks,
   };
 }
 

@@ -64,7 +64,8 @@ function withoutTiming(stdout: string): string {
   return stripped;
 }
 
-function expectInterval(value: unknown, n: number): void {
+/** An interval of the contract; its ends are mean ∓ half-width clipped to [lower, upper] (README, "What the outputs mean"). */
+function expectInterval(value: unknown, n: number, lower = 0, upper = Infinity): void {
   expect(value).toBeTypeOf('object');
   const interval = value as Record<string, unknown>;
   expect(Object.keys(interval).sort()).toEqual(['halfWidth', 'high', 'low', 'mean', 'n']);
@@ -72,8 +73,8 @@ function expectInterval(value: unknown, n: number): void {
   const { mean, halfWidth, low, high } = interval as { mean: number; halfWidth: number; low: number; high: number };
   for (const number of [mean, halfWidth, low, high]) expect(Number.isFinite(number)).toBe(true);
   expect(halfWidth).toBeGreaterThanOrEqual(0);
-  expect(low).toBeCloseTo(mean - halfWidth, 9);
-  expect(high).toBeCloseTo(mean + halfWidth, 9);
+  expect(low).toBeCloseTo(Math.max(lower, mean - halfWidth), 9);
+  expect(high).toBeCloseTo(Math.min(upper, mean + halfWidth), 9);
 }
 
 describe('run --json (DESIGN §7)', () => {
@@ -104,19 +105,31 @@ describe('run --json (DESIGN §7)', () => {
       confidence: 0.95,
       tickSeconds: 1,
     });
-    for (const field of ['throughputPerHour', 'stationIdleFraction', 'stationStarvedFraction', 'leadTimeSeconds', 'tasksInSystem', 'deadlocks']) {
-      expectInterval(summary[field], 2);
-    }
+    for (const field of ['throughputPerHour', 'tasksInSystem', 'deadlocks']) expectInterval(summary[field], 2);
+    for (const field of ['stationIdleFraction', 'stationStarvedFraction']) expectInterval(summary[field], 2, 0, 1);
     expect(Object.keys(summary.robotTime).sort()).toEqual(['empty', 'handling', 'loaded', 'parked', 'waiting']);
-    for (const part of Object.values(summary.robotTime)) expectInterval(part, 2);
+    for (const part of Object.values(summary.robotTime)) expectInterval(part, 2, 0, 1);
     expect(summary.throughputPerHour.mean).toBeGreaterThan(0);
+    // 6 robots cannot keep up with the demo's 900 tasks/h: the backlog grows, so lead times
+    // count the open tasks' ages and have no interval.
+    expect(summary.throughputPerHour.mean).toBeLessThan(900 * 0.75);
+    expect(summary.stable).toBe(false);
+    expectInterval(summary.backlogGrowthPerHour, 2, -Infinity, Infinity);
+    expect(summary.backlogGrowthPerHour.mean).toBeGreaterThan(0);
+    expect(summary.leadTimeIncludesOpenTasks).toBe(true);
+    expect(summary.leadTimeSeconds).toMatchObject({ halfWidth: null, low: null, high: null, n: 2 });
+    expect(summary.leadTimeSeconds.mean).toBeGreaterThan(0);
 
     expect(Number.isInteger(summary.collisions)).toBe(true);
     expect(summary.collisions).toBe(0);
     const { released, delivered, open } = summary.tasks;
     for (const count of [released, delivered, open]) expect(Number.isInteger(count)).toBe(true);
     expect(delivered).toBeGreaterThan(0);
-    expect(released).toBe(delivered + open);
+    expect(delivered).toBeLessThanOrEqual(released);
+    // Poisson arrivals at 900/h over 2 x 0.25 h: count mean 450, variance 450 (a Poisson
+    // count's variance equals its mean), standard deviation 21.2; 5 standard deviations either side.
+    expect(released).toBeGreaterThan(450 - 5 * 21.2);
+    expect(released).toBeLessThan(450 + 5 * 21.2);
 
     expect(summary.warmupSeconds).toBeGreaterThanOrEqual(0);
     expect(summary.warmupSeconds).toBeLessThan(0.25 * 3600);
@@ -148,6 +161,10 @@ describe('run --out', () => {
     // Header plus one row per replication.
     expect(lines('replications.csv')).toHaveLength(1 + 2);
     expect(lines('replications.csv')[0]).toMatch(/^replication,throughputPerHour,/);
+    const header = lines('replications.csv')[0].split(',');
+    for (const column of ['stable', 'backlogGrowthPerHour', 'backlogGrowthLow', 'backlogGrowthHigh', 'deadlocks']) expect(header).toContain(column);
+    const stableColumn = header.indexOf('stable');
+    for (const row of lines('replications.csv').slice(1)) expect(['true', 'false']).toContain(row.split(',')[stableColumn]);
     // 0.25 h in 60 s samples: 15 rows per replication.
     expect(lines('throughput.csv')).toHaveLength(1 + 2 * 15);
     // One row per station: 8 pickups and 40 drops.
@@ -324,6 +341,26 @@ describe('the demo as `npm start` runs it', () => {
   });
 });
 
+describe('a warm-up cut that leaves no delivery', () => {
+  it('fails the run with exit 1 and says so', () => {
+    const folder = freshFolder();
+    // Three tasks in the first 20 s of the small hall, all delivered within a couple of minutes.
+    writeFileSync(path.join(folder, 'orders.csv'), 'releaseSeconds,pickup,drop\n0,1:1,7:1\n10,1:1,7:2\n20,1:1,7:1\n');
+    const result = fleetwright('run', smallHall, '--trace', path.join(folder, 'orders.csv'), '--hours', '0.25', '--warmup', '0.2', '--reps', '1', '--json');
+    expect(result.status).toBe(1);
+    expect(result.stderr).toMatch(/^fleetwright: run failed: policy token-passing: the warm-up cut of 0\.20 h \(fixed\) leaves no delivery to measure \(3 tasks delivered before it/);
+    expect(result.stderr.trim().split('\n')).toHaveLength(1);
+  });
+
+  it('a trace is not cut automatically: the same trace with --warmup auto reports all three deliveries', () => {
+    const folder = freshFolder();
+    writeFileSync(path.join(folder, 'orders.csv'), 'releaseSeconds,pickup,drop\n0,1:1,7:1\n10,1:1,7:2\n20,1:1,7:1\n');
+    const summary = jsonOf(fleetwright('run', smallHall, '--trace', path.join(folder, 'orders.csv'), '--hours', '0.25', '--reps', '1', '--json'));
+    expect(summary.warmup).toMatchObject({ method: 'none', seconds: 0 });
+    expect(summary.tasks.delivered).toBe(3);
+  });
+});
+
 describe('compare --json (DESIGN §7)', () => {
   it('two policies on common random numbers: two summaries and a Bonferroni-adjusted difference per metric', () => {
     const result = fleetwright('compare', demo, '--policies', 'token-passing,token-passing-swaps', '--reps', '3', '--hours', '0.5', '--json');
@@ -335,15 +372,14 @@ describe('compare --json (DESIGN §7)', () => {
     for (const summary of [a, b]) expect(summary).toMatchObject({ replications: 3, hours: 0.5, robots: 24 });
     // Common random numbers: both policies see the same task stream.
     expect(b.tasks.released).toBe(a.tasks.released);
-    expect(b.warmupSeconds).toBe(a.warmupSeconds);
 
-    const metrics = ['throughputPerHour', 'leadTimeSeconds', 'stationStarvedFraction', 'deadlocks'];
+    const metrics = ['throughputPerHour', 'leadTimeSeconds', 'leadTimeP95Seconds', 'stationStarvedFraction', 'deadlocks'];
     expect(document.differences.map((d: { metric: string }) => d.metric).sort()).toEqual([...metrics].sort());
     for (const difference of document.differences) {
-      expect(difference).toMatchObject({ a: 'token-passing', b: 'token-passing-swaps' });
+      expect(difference).toMatchObject({ a: 'token-passing', b: 'token-passing-swaps', note: null });
       for (const key of ['mean', 'halfWidth', 'low', 'high']) expect(difference[key], `${difference.metric}.${key}`).toBeTypeOf('number');
-      // One pair: the Bonferroni level is the nominal one.
-      expect(difference.confidence).toBeCloseTo(0.95, 12);
+      // One pair x 5 metrics reported together: Bonferroni gives 1 - 0.05 / 5 = 0.99 each.
+      expect(difference.confidence).toBeCloseTo(0.99, 12);
       expect(difference.low).toBeCloseTo(difference.mean - difference.halfWidth, 9);
       expect(difference.high).toBeCloseTo(difference.mean + difference.halfWidth, 9);
     }
