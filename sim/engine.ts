@@ -98,7 +98,7 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     }
   }
   const stationCells = Int32Array.from(stationCellsList);
-  const metrics = new MetricsRecorder(intervalTicks, endTick, stationCells.length);
+  const metrics = new MetricsRecorder(intervalTicks, endTick, stationCells.length, layout.cellCount);
 
   const world = new World(layout, robots);
   placeRobots(world, layout);
@@ -379,11 +379,14 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     let handling = 0;
     let waiting = 0;
     let parked = 0;
+    const cellWaiting = metrics.cellWaitingTicks;
     for (let r = 0; r < robots; r++) {
       const phase = world.robotPhase[r];
       if (isHandling(phase)) handling++;
-      else if (phase !== Phase.Idle) waiting++;
-      else parked++;
+      else if (phase !== Phase.Idle) {
+        waiting++;
+        cellWaiting[world.robotCell[r]] += to - from;
+      } else parked++;
     }
     metrics.addStill(from, to, handling, waiting, parked);
   };
@@ -407,7 +410,10 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
       const to = moves[r];
       if (to === from) {
         if (phase === Phase.Idle) parked++;
-        else waiting++;
+        else {
+          waiting++;
+          metrics.cellWaitingTicks[from]++;
+        }
         continue;
       }
       if (isLoaded(phase)) loaded++;

@@ -46,6 +46,12 @@ export class MetricsRecorder {
   deliveryTicks: number[] = [];
   leadTicks: number[] = [];
   readonly episodes: DeadlockEpisode[] = [];
+  /**
+   * Robot-ticks of waiting per cell over the whole run (warm-up included): a robot holding a
+   * task that did not move adds one tick at the cell it stands on. The floor heatmap of the
+   * HTML report; `run --out` writes it as cells.csv.
+   */
+  readonly cellWaitingTicks: Float64Array;
 
   private inSystem = 0;
   private inSystemSince = 0;
@@ -57,7 +63,9 @@ export class MetricsRecorder {
     readonly intervalTicks: number,
     readonly endTick: number,
     readonly stationCount: number,
+    cellCount = 0,
   ) {
+    this.cellWaitingTicks = new Float64Array(cellCount);
     this.intervalCount = Math.ceil(endTick / intervalTicks);
     this.deliveries = new Float64Array(this.intervalCount);
     this.releases = new Float64Array(this.intervalCount);
