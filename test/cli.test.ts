@@ -148,11 +148,11 @@ describe('run --json (DESIGN §7)', () => {
 });
 
 describe('run --out', () => {
-  it('writes summary.json and three CSV files, and a later bad-input run into the same folder exits 2 and leaves them byte-identical', () => {
+  it('writes summary.json, the CSV files and the report inputs, and a later bad-input run into the same folder exits 2 and leaves them byte-identical', () => {
     const out = path.join(freshFolder(), 'results');
     const result = fleetwright('run', demo, '--robots', '6', '--hours', '0.25', '--reps', '2', '--seed', '5', '--json', '--out', out);
     expect(result.status, result.stderr).toBe(0);
-    const names = ['replications.csv', 'stations.csv', 'summary.json', 'throughput.csv'];
+    const names = ['cells.csv', 'context.json', 'lead-times.csv', 'replications.csv', 'stations.csv', 'summary.json', 'throughput.csv'];
     expect(readdirSync(out).sort()).toEqual(names);
 
     const files = Object.fromEntries(names.map((name) => [name, readFileSync(path.join(out, name), 'utf8')]));
@@ -170,6 +170,10 @@ describe('run --out', () => {
     // One row per station: 8 pickups and 40 drops.
     expect(lines('stations.csv')).toHaveLength(1 + 48);
     expect(lines('stations.csv')[0]).toBe('cell,kind,idleFraction,starvedFraction');
+    // One row per cell of the 40 x 20 demo hall, walls included.
+    expect(lines('cells.csv')).toHaveLength(1 + 40 * 20);
+    expect(lines('cells.csv')[0]).toBe('x,y,kind,waitingSecondsPerHour');
+    expect(JSON.parse(files['context.json']).command).toBe(`fleetwright run ${demo} --robots 6 --hours 0.25 --reps 2 --seed 5 --json --out ${out}`);
 
     const failed = fleetwright('run', demo, '--robots', '0', '--hours', '0.25', '--reps', '2', '--json', '--out', out);
     expect(failed.status).toBe(2);

@@ -7,6 +7,7 @@ import { summarize, toJson } from '../../reports/summary.ts';
 import { renderRunTable } from '../../reports/console-table.ts';
 import { replicationsCsv, stationsCsv, throughputSeriesCsv } from '../../reports/csv.ts';
 import { ensureDirectory, writeFileAtomic } from '../../reports/write-files.ts';
+import { writeReportInputs } from '../../reports/report-inputs.ts';
 import { startProgress } from '../progress.ts';
 import { RunError } from '../../sim/errors.ts';
 
@@ -36,7 +37,8 @@ export async function runCommand(scenarioPath: string, json: boolean, outDirecto
     writeFileAtomic(path.join(outDirectory, 'replications.csv'), replicationsCsv(records, parts.perReplication));
     writeFileAtomic(path.join(outDirectory, 'throughput.csv'), throughputSeriesCsv(records, parts.cutIntervals));
     writeFileAtomic(path.join(outDirectory, 'stations.csv'), stationsCsv(parts.summary));
-    if (!json) process.stderr.write(`results written to ${outDirectory}/ (summary.json, replications.csv, throughput.csv, stations.csv)\n`);
+    writeReportInputs(outDirectory, [{ scenario, records }], parts.cutIntervals, process.argv.slice(2));
+    if (!json) process.stderr.write(`results written to ${outDirectory}/ (summary.json, replications.csv, throughput.csv, stations.csv, cells.csv, lead-times.csv, context.json)\n`);
   }
   if (collided) {
     throw new RunError(

@@ -1,0 +1,38 @@
+/**
+ * The files beside a run's or a comparison's results that the HTML report draws from and
+ * that `summary.json` / `comparison.json` do not hold: `cells.csv` (waiting per floor cell),
+ * `lead-times.csv` (lead-time histogram after the warm-up) and `context.json` (command,
+ * version, scenario and its hash). Each is written atomically.
+ */
+import path from 'node:path';
+import type { Scenario } from '../sim/model.ts';
+import type { ReplicationRecord } from '../sim/engine.ts';
+import { parseLayout } from '../sim/layout.ts';
+import { cellRows, cellsCsv } from './cells-csv.ts';
+import { leadTimeHistogram, leadTimesAfterWarmup, leadTimesCsv } from './lead-time-histogram.ts';
+import { runContext } from './run-context.ts';
+import { toJson } from './summary.ts';
+import { writeFileAtomic } from './write-files.ts';
+
+export const reportInputFiles = ['cells.csv', 'lead-times.csv', 'context.json'] as const;
+
+export interface ReportInputRun {
+  scenario: Scenario;
+  records: ReplicationRecord[];
+}
+
+/**
+ * `runs` holds one run (`run --out`) or one per policy (`compare --out`, which adds a policy
+ * column); `cutIntervals` is the warm-up cut the summary used; `argv` the command's arguments.
+ */
+export function writeReportInputs(directory: string, runs: ReportInputRun[], cutIntervals: number, argv: readonly string[]): void {
+  const compare = runs.length > 1;
+  const layout = parseLayout(runs[0].scenario.layoutText);
+  const policy = (run: ReportInputRun) => (compare ? run.scenario.policy.name : undefined);
+  writeFileAtomic(path.join(directory, 'cells.csv'), cellsCsv(runs.map((run) => ({ policy: policy(run), rows: cellRows(layout, run.records) }))));
+  writeFileAtomic(
+    path.join(directory, 'lead-times.csv'),
+    leadTimesCsv(runs.map((run) => ({ policy: policy(run), bins: leadTimeHistogram(leadTimesAfterWarmup(run.records, cutIntervals)) }))),
+  );
+  writeFileAtomic(path.join(directory, 'context.json'), `${toJson(runContext(runs[0].scenario, argv))}\n`);
+}
