@@ -87,6 +87,16 @@ addRunOptions(
 });
 
 program
+  .command('report')
+  .description('write one self-contained HTML report (charts, floor heatmap, no network) from a folder of run --out, compare --out, size --out or sweep --out')
+  .argument('<results-dir>', 'results folder')
+  .addOption(new Option('--html <file>', 'HTML file to write (default: report.html in the results folder)'))
+  .action(async (folder: string, options: { html?: string }) => {
+    const { reportCommand } = await import('./commands/report.ts');
+    reportCommand(folder, options.html);
+  });
+
+program
   .command('check')
   .description('summarize a layout and test it: connected, well-formed (Ma et al. 2017), and if not, which two endpoints break it')
   .argument('<scenario>', 'scenario YAML file')

@@ -1,0 +1,36 @@
+/**
+ * Colours of the report and the replay viewer.
+ *
+ * Categories (robot states, robot time split, policies) use the Okabe-Ito palette (Okabe &
+ * Ito, "Color Universal Design", 2008), chosen so that every pair stays apart for protan,
+ * deutan and tritan vision, and assigned so that the robot time categories also step in
+ * lightness (CIE L* about 45, 58, 69, 81, 90) and stay apart when printed in grey.
+ * Heat (waiting time per cell) uses five classes of ColorBrewer's YlOrRd (Brewer,
+ * colorbrewer2.org, marked colour-blind safe there), whose lightness falls monotonically.
+ * test/palette.test.ts checks both claims with culori's deficiency simulation (Machado,
+ * Oliveira & Fernandes 2009) and CIEDE2000.
+ */
+
+/** Robot states of the replay, and the robot time split of the report (parked = no task). */
+export const stateColours = {
+  loaded: '#0072b2',
+  handling: '#009e73',
+  empty: '#56b4e9',
+  parked: '#c8c8c8',
+  waiting: '#f0e442',
+  stalled: '#d55e00',
+} as const;
+
+/** The five robot time categories of the run summary, in its order. */
+export const robotTimeColours = [stateColours.loaded, stateColours.empty, stateColours.handling, stateColours.waiting, stateColours.parked] as const;
+
+/** Policies in a comparison (Okabe-Ito, black and yellow left out: black is for text, yellow is faint on white). */
+export const policyColours = ['#0072b2', '#d55e00', '#009e73', '#cc79a7', '#e69f00', '#56b4e9'] as const;
+
+/** YlOrRd, 5 classes (ColorBrewer, classes 2-6 of the 6-class scheme; memory), light to dark. */
+export const heatColours = ['#fed976', '#feb24c', '#fd8d3c', '#f03b20', '#bd0026'] as const;
+
+/** Walls and blocked cells. */
+export const wallColour = '#4d4d4d';
+/** Accent for target lines and recommendations (Okabe-Ito vermillion). */
+export const accentColour = '#d55e00';

@@ -1,0 +1,48 @@
+/**
+ * Charts: Observable Plot (@observablehq/plot) renders each chart to SVG in Node, with
+ * linkedom as the DOM, so a page carries finished SVG and needs no script in the browser.
+ * Plot was chosen because it is a maintained, declarative layer over d3's scales and
+ * shapes (axes, ticks, legends, facets, interval marks come from it, not from our code)
+ * and it renders without a browser given any DOM implementation; linkedom is a small,
+ * fast DOM with correct serialization (text is escaped by its outerHTML).
+ *
+ * `chart` also returns the data table that goes under every chart (accessibility: the
+ * same numbers as text).
+ */
+import * as Plot from '@observablehq/plot';
+import { parseHTML } from 'linkedom';
+import { escapeHtml } from './escape.ts';
+
+export type PlotOptions = Plot.PlotOptions;
+
+/** Renders a Plot specification to SVG (or a figure with a legend) markup. */
+export function renderPlot(options: PlotOptions): string {
+  const { document } = parseHTML('<!doctype html><html><head></head><body></body></html>');
+  const node = Plot.plot({ style: { fontSize: '11px', background: 'white', color: '#111' }, ...options, document } as PlotOptions) as unknown as { outerHTML: string };
+  return node.outerHTML;
+}
+
+export interface TableColumn<T> {
+  label: string;
+  value: (row: T) => string | number;
+  /** Right-align (numbers). */
+  numeric?: boolean;
+}
+
+export function dataTable<T>(caption: string, columns: TableColumn<T>[], rows: T[], note?: string): string {
+  const head = columns.map((c) => `<th scope="col"${c.numeric ? ' class="num"' : ''}>${escapeHtml(c.label)}</th>`).join('');
+  const body = rows
+    .map((row) => `<tr>${columns.map((c, i) => (i === 0 ? `<th scope="row">${escapeHtml(c.value(row))}</th>` : `<td${c.numeric ? ' class="num"' : ''}>${escapeHtml(c.value(row))}</td>`)).join('')}</tr>`)
+    .join('\n');
+  const foot = note ? `<p class="table-note">${escapeHtml(note)}</p>` : '';
+  return `<table class="data"><caption>${escapeHtml(caption)}</caption><thead><tr>${head}</tr></thead><tbody>\n${body}\n</tbody></table>${foot}`;
+}
+
+/** A chart with its title, a sentence saying how to read it, the SVG and the data table. */
+export function chartFigure(id: string, title: string, reading: string, svg: string, table: string): string {
+  return `<figure class="chart" id="${escapeHtml(id)}" data-chart="${escapeHtml(id)}">
+<figcaption><h3>${escapeHtml(title)}</h3><p>${escapeHtml(reading)}</p></figcaption>
+<div class="plot">${svg}</div>
+${table}
+</figure>`;
+}
