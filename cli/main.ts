@@ -68,10 +68,16 @@ addRunOptions(
     .description('simulate a scenario and print throughput, station idle and starved time, lead time, robot time and deadlocks with intervals')
     .argument('<scenario>', 'scenario YAML file')
     .addOption(new Option('--policy <name>', 'dispatch-and-routing policy (overrides policy.name; see `fleetwright policies`)'))
-    .addOption(new Option('--out <dir>', 'also write summary.json, replications.csv, throughput.csv and stations.csv into this folder')),
-).action(async (scenarioPath: string, options: RunOptionValues) => {
+    .addOption(new Option('--out <dir>', 'also write summary.json, replications.csv, throughput.csv, stations.csv, cells.csv, lead-times.csv and context.json into this folder'))
+    .addOption(new Option('--record <file>', 'record robot motion of replication 1 for `fleetwright replay` (a .fwr file)'))
+    .addOption(new Option('--record-window <from:to>', 'simulated seconds to record (default 0:1800)')),
+).action(async (scenarioPath: string, options: RunOptionValues & { record?: string; recordWindow?: string }) => {
   const { runCommand } = await import('./commands/run.ts');
-  await runCommand(scenarioPath, options.json === true, options.out, overridesFrom(options));
+  if (options.recordWindow !== undefined && options.record === undefined) {
+    const { InputError } = await import('../sim/errors.ts');
+    throw new InputError(`--record-window: got ${JSON.stringify(options.recordWindow)} without --record, expected --record FILE beside it`);
+  }
+  await runCommand(scenarioPath, options.json === true, options.out, overridesFrom(options), options.record === undefined ? undefined : { file: options.record, window: options.recordWindow });
 });
 
 addRunOptions(
@@ -94,6 +100,16 @@ program
   .action(async (folder: string, options: { html?: string }) => {
     const { reportCommand } = await import('./commands/report.ts');
     reportCommand(folder, options.html);
+  });
+
+program
+  .command('replay')
+  .description('write a self-contained replay viewer (canvas, play/pause, speed, scrubber, robot states, waiting heatmap, deadlock episodes) for a motion recording of run --record')
+  .argument('<recording>', 'recording file (.fwr)')
+  .addOption(new Option('--html <file>', 'HTML file to write (default: the recording name with .html, beside it)'))
+  .action(async (file: string, options: { html?: string }) => {
+    const { replayCommand } = await import('./commands/replay.ts');
+    replayCommand(file, options.html);
   });
 
 program

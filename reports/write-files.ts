@@ -15,11 +15,12 @@ export function ensureDirectory(directory: string, option = '--out'): void {
   }
 }
 
-export function writeFileAtomic(file: string, content: string): void {
+export function writeFileAtomic(file: string, content: string | Uint8Array): void {
   const temporary = path.join(path.dirname(file), `.${path.basename(file)}.${process.pid}.tmp`);
   const fd = openSync(temporary, 'w');
   try {
-    writeSync(fd, content);
+    if (typeof content === 'string') writeSync(fd, content);
+    else writeSync(fd, content);
     fsyncSync(fd);
   } finally {
     closeSync(fd);

@@ -8,21 +8,24 @@ import { renderRunTable } from '../../reports/console-table.ts';
 import { replicationsCsv, stationsCsv, throughputSeriesCsv } from '../../reports/csv.ts';
 import { ensureDirectory, writeFileAtomic } from '../../reports/write-files.ts';
 import { writeReportInputs } from '../../reports/report-inputs.ts';
+import { prepareRecording } from '../../reports/recording/record-run.ts';
 import { startProgress } from '../progress.ts';
 import { RunError } from '../../sim/errors.ts';
 
-export async function runCommand(scenarioPath: string, json: boolean, outDirectory: string | undefined, overrides: ScenarioOverrides): Promise<void> {
+export async function runCommand(scenarioPath: string, json: boolean, outDirectory: string | undefined, overrides: ScenarioOverrides, record?: { file: string; window?: string }): Promise<void> {
   const scenario = loadScenarioFile(scenarioPath, overrides);
   // Validate everything (policy name and options, output folder) before spending time.
   const setup = prepareSetup(scenario, overrides.policy !== undefined ? '--policy' : undefined);
   if (outDirectory !== undefined) ensureDirectory(outDirectory);
+  const recording = record ? prepareRecording(setup, record.file, record.window) : null;
   const started = performance.now();
   const n = scenario.run.replications;
   const progress = await startProgress(`${scenario.policy.name}, ${scenario.fleet.robots} robots`);
   const records: ReplicationRecord[] = [];
   try {
     for (let rep = 0; rep < n; rep++) {
-      records.push(runReplication(setup, rep, { progress: (f) => progress.update((rep + f) / n, `replication ${rep + 1}/${n}`) }));
+      const hooks = rep === 0 && recording ? recording.hooks : {};
+      records.push(runReplication(setup, rep, { ...hooks, progress: (f) => progress.update((rep + f) / n, `replication ${rep + 1}/${n}`) }));
     }
   } finally {
     progress.stop();
@@ -39,6 +42,10 @@ export async function runCommand(scenarioPath: string, json: boolean, outDirecto
     writeFileAtomic(path.join(outDirectory, 'stations.csv'), stationsCsv(parts.summary));
     writeReportInputs(outDirectory, [{ scenario, records }], parts.cutIntervals, process.argv.slice(2));
     if (!json) process.stderr.write(`results written to ${outDirectory}/ (summary.json, replications.csv, throughput.csv, stations.csv, cells.csv, lead-times.csv, context.json)\n`);
+  }
+  if (recording) {
+    const bytes = recording.write(records[0]);
+    if (!json) process.stderr.write(`motion of replication 1 recorded in ${recording.file} (${bytes} bytes); view it with: fleetwright replay ${recording.file}\n`);
   }
   if (collided) {
     throw new RunError(
