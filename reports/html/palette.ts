@@ -5,8 +5,10 @@
  * Ito, "Color Universal Design", 2008), chosen so that every pair stays apart for protan,
  * deutan and tritan vision, and assigned so that the robot time categories also step in
  * lightness (CIE L* about 45, 58, 69, 81, 90) and stay apart when printed in grey.
- * Heat (waiting time per cell) uses five classes of ColorBrewer's YlOrRd (Brewer,
- * colorbrewer2.org, marked colour-blind safe there), whose lightness falls monotonically.
+ * Heat (waiting time per cell) uses five classes of viridis (van der Walt & Smith, the
+ * matplotlib colour map designed to stay ordered for colour-vision deficiencies and in
+ * grey), light yellow for little waiting to dark violet for much. ColorBrewer's YlOrRd
+ * was tried first: its two lightest classes merge for deuteranopes (CIEDE2000 below 7).
  * test/palette.test.ts checks both claims with culori's deficiency simulation (Machado,
  * Oliveira & Fernandes 2009) and CIEDE2000.
  */
@@ -27,8 +29,8 @@ export const robotTimeColours = [stateColours.loaded, stateColours.empty, stateC
 /** Policies in a comparison (Okabe-Ito, black and yellow left out: black is for text, yellow is faint on white). */
 export const policyColours = ['#0072b2', '#d55e00', '#009e73', '#cc79a7', '#e69f00', '#56b4e9'] as const;
 
-/** YlOrRd, 5 classes (ColorBrewer, classes 2-6 of the 6-class scheme; memory), light to dark. */
-export const heatColours = ['#fed976', '#feb24c', '#fd8d3c', '#f03b20', '#bd0026'] as const;
+/** Viridis at 5 evenly spaced stops (memory), light to dark. */
+export const heatColours = ['#fde725', '#5ec962', '#21918c', '#3b528b', '#440154'] as const;
 
 /** Walls and blocked cells. */
 export const wallColour = '#4d4d4d';

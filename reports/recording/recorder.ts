@@ -57,6 +57,9 @@ export class MotionRecorder {
   private readonly codes: Uint8Array;
   private readonly initial: Uint32Array;
   private readonly previous: Int32Array;
+  /** Per robot at the last executed tick: handling until this tick (inclusive), or -1; and the code written. */
+  private readonly handlingUntil: Int32Array;
+  private readonly lastCode: Uint8Array;
   private readonly jumps: number[] = [];
   /** Frames [0, filled) are written. */
   private filled = 0;
@@ -78,6 +81,8 @@ export class MotionRecorder {
     const start = new World(setup.layout, robots);
     placeRobots(start, setup.layout);
     this.previous = Int32Array.from(start.robotCell);
+    this.handlingUntil = new Int32Array(robots).fill(-1);
+    this.lastCode = new Uint8Array(robots);
     this.hooks = { afterMotion: (tick, world) => this.afterMotion(tick, world) };
   }
 
@@ -93,7 +98,12 @@ export class MotionRecorder {
     for (let f = this.filled; f < Math.min(frame, this.frames); f++) {
       if (f === 0) this.initial.set(this.previous);
       const base = f * robots;
-      for (let r = 0; r < robots; r++) this.codes[base + r] = this.stillCode(world, r);
+      const tick = this.startTick + f;
+      for (let r = 0; r < robots; r++) {
+        // A frame describes the step into its tick: still handling while tick <= the end of the handling.
+        const handling = tick <= this.handlingUntil[r];
+        this.codes[base + r] = handling ? (RobotState.Handling << stateShift) | (this.lastCode[r] & loadBit) : this.stillCode(world, r);
+      }
     }
     this.filled = Math.max(this.filled, Math.min(frame, this.frames));
   }
@@ -131,6 +141,10 @@ export class MotionRecorder {
       this.filled = frame + 1;
     }
     this.previous.set(cells);
+    for (let r = 0; r < robots; r++) {
+      this.handlingUntil[r] = isHandling(world.robotPhase[r]) ? world.robotHandlingUntil[r] : -1;
+      this.lastCode[r] = isLoaded(world.robotPhase[r]) ? loadBit : 0;
+    }
     this.lastWorld = world;
   }
 
