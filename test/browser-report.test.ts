@@ -25,7 +25,7 @@ const csv = (file: string): Record<string, string>[] => parse(readFileSync(file,
 
 beforeAll(async () => {
   browser = await launchChromium();
-  ok(fleetwright('run', 'scenarios/demo-sortation.yaml', '--hours', '0.5', '--reps', '2', '--out', path.join(folder, 'run')));
+  ok(fleetwright('run', 'scenarios/demo-sortation.yaml', '--hours', '2', '--reps', '3', '--out', path.join(folder, 'run')));
   ok(fleetwright('report', path.join(folder, 'run'), '--html', path.join(folder, 'run.html')));
   ok(fleetwright('compare', 'scenarios/demo-sortation.yaml', '--policies', 'token-passing,greedy-reactive', '--robots', '12', '--hours', '0.25', '--reps', '2', '--out', path.join(folder, 'compare')));
   ok(fleetwright('report', path.join(folder, 'compare'), '--html', path.join(folder, 'compare.html')));
@@ -66,7 +66,7 @@ describe('run report in Chromium', () => {
     expect(await count('#floor .mark-station rect')).toBe(48);
     expect(summary.stations).toHaveLength(48);
     // Throughput over time: one line per replication.
-    expect(await count('#throughput-over-time .mark-replication-line path')).toBe(2);
+    expect(await count('#throughput-over-time .mark-replication-line path')).toBe(3);
     // Lead time: one bar per bin of lead-times.csv.
     expect(bins.length).toBeGreaterThan(3);
     expect(await count('#lead-time .mark-lead-time-bin rect')).toBe(bins.length);

@@ -57,7 +57,7 @@ export function floorMap(cells: CellCsvRow[], cellMeters: number, options: { hea
   const heatMax = nice(0, options.heatMax ?? heat.reduce((m, c) => Math.max(m, c.waitingSecondsPerHour), 0), heatColours.length)[1];
 
   const maxWidth = options.maxWidth ?? 880;
-  const margin = { left: 44, right: 12, top: 10, bottom: 36 };
+  const margin = { left: 50, right: 12, top: 10, bottom: 40 };
   const cellPixels = Math.min(26, (maxWidth - margin.left - margin.right) / Math.max(1, width));
   const plotWidth = Math.round(width * cellPixels + margin.left + margin.right);
   const floorWidth = width * cellMeters;
@@ -71,7 +71,7 @@ export function floorMap(cells: CellCsvRow[], cellMeters: number, options: { hea
     Plot.rect(stations, { x1: 'x1', x2: 'x2', y1: 'y1', y2: 'y2', stroke: '#111', strokeWidth: 1.2, fill: 'none', inset: 0.5, className: 'mark-station' }),
   ];
   // Letters only where a cell is big enough to read one.
-  if (cellPixels >= 11) marks.push(Plot.text(lettered, { x: 'cx', y: 'cy', text: 'letter', fontSize: Math.min(12, cellPixels * 0.6), fill: '#111', className: 'mark-point-letter' }));
+  if (cellPixels >= 11) marks.push(Plot.text(lettered, { x: 'cx', y: 'cy', text: 'letter', fontSize: Math.min(12, cellPixels * 0.6), fill: '#111', stroke: 'white', strokeWidth: 2.5, className: 'mark-point-letter' }));
 
   const svg = renderPlot({
     width: plotWidth,
@@ -80,8 +80,8 @@ export function floorMap(cells: CellCsvRow[], cellMeters: number, options: { hea
     marginTop: margin.top,
     marginBottom: margin.bottom,
     aspectRatio: 1,
-    x: { domain: [0, floorWidth], label: 'x (m)', labelAnchor: 'right' },
-    y: { domain: [0, floorHeight], reverse: true, label: 'y (m)', labelAnchor: 'top' },
+    x: { domain: [0, floorWidth], label: 'x (m)', labelAnchor: 'center' },
+    y: { domain: [0, floorHeight], reverse: true, label: 'y (m)', labelAnchor: 'center' },
     color: { type: 'quantize', n: heatColours.length, domain: [0, Math.max(heatMax, 1e-9)], range: [...heatColours], legend: heat.length > 0, label: 'robot waiting, seconds per hour' },
     marks,
   });
