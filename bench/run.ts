@@ -5,8 +5,8 @@
  *
  *   npm run bench                 table on stdout
  *   npm run bench -- --json       one JSON array of rows
- *   npm run bench -- --quick      skip the slow rows (munkres-js at 1000, pibt at 1,000 robots)
- *   npm run bench -- --only NAME  only rows whose name starts with NAME (engine, policy, pibt, assignment)
+ *   npm run bench -- --quick      skip the slow rows (munkres-js at 1000, pibt at 1,000 robots, the replay viewer)
+ *   npm run bench -- --only NAME  only rows whose name starts with NAME (engine, policy, pibt, replay, assignment)
  */
 import { loadScenarioFile } from '../scenarios/load.ts';
 import { prepareSetup } from '../experiments/replications.ts';
@@ -69,6 +69,10 @@ if (wanted('policy')) {
 if (wanted('pibt') && !quick && policies.some((p) => p.name === 'pibt')) {
   const { benchPibt } = await import('./pibt.ts');
   rows.push((await benchPibt()) as unknown as Row);
+}
+if (wanted('replay') && !quick) {
+  const { benchReplay } = await import('./replay.ts');
+  rows.push((await benchReplay()) as unknown as Row);
 }
 if (wanted('assignment')) {
   const { benchAssignment } = await import('./assignment.ts');

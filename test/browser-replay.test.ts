@@ -65,14 +65,19 @@ function truthAt(recorded: Recorded, tick: number): Int32Array {
 }
 
 async function ready(watch: PageWatch): Promise<void> {
-  await watch.page.waitForFunction(() => window.__fleetwrightReplay?.ready === true, null, { timeout: 20_000 });
+  await watch.page.waitForFunction('window.__fleetwrightReplay?.ready === true', null, { timeout: 20_000 });
 }
 
-declare global {
-  interface Window {
-    __fleetwrightReplay?: { ready: boolean; frame(): number; playing(): boolean; frames: number; drawn(): { frame: number; x: number[]; y: number[]; pixelsPerCell: number } };
-  }
+/** What the viewer's test hook returns for the last drawn frame (positions in cell units, centres at +0.5). */
+interface Drawn {
+  frame: number;
+  x: number[];
+  y: number[];
+  pixelsPerCell: number;
 }
+
+// Code run inside the page is passed as text: the Node-side type check has no DOM library.
+const inPage = <T>(watch: PageWatch, expression: string): Promise<T> => watch.page.evaluate(expression) as Promise<T>;
 
 let demo: Recorded;
 let corridor: Recorded;
@@ -121,13 +126,13 @@ describe('replay viewer in Chromium', () => {
     expect(watch.consoleErrors).toEqual([]);
     expect(watch.pageErrors).toEqual([]);
     expect(watch.requests).toEqual([]);
-    expect(await watch.page.evaluate(() => window.__fleetwrightReplay!.frames)).toBe(601);
+    expect(await inPage<number>(watch, 'window.__fleetwrightReplay.frames')).toBe(601);
     await watch.page.click('#play');
-    await watch.page.waitForFunction(() => window.__fleetwrightReplay!.frame() > 20, null, { timeout: 20_000 });
-    expect(await watch.page.evaluate(() => window.__fleetwrightReplay!.playing())).toBe(true);
+    await watch.page.waitForFunction('window.__fleetwrightReplay.frame() > 20', null, { timeout: 20_000 });
+    expect(await inPage<boolean>(watch, 'window.__fleetwrightReplay.playing()')).toBe(true);
     expect(await watch.page.locator('#play').textContent()).toBe('Pause');
     await watch.page.click('#play');
-    const paused = await watch.page.evaluate(() => window.__fleetwrightReplay!.frame());
+    const paused = await inPage<number>(watch, 'window.__fleetwrightReplay.frame()');
     expect(Number.isInteger(paused)).toBe(true);
     await watch.page.screenshot({ path: artifact('replay-demo.png'), fullPage: true });
     await watch.page.close();
@@ -138,17 +143,17 @@ describe('replay viewer in Chromium', () => {
     await ready(watch);
     for (const t of [0, 1, 137, 299, 600]) {
       await watch.page.locator('#scrubber').fill(String(t));
-      const drawn = await watch.page.evaluate(() => window.__fleetwrightReplay!.drawn());
+      const drawn = await inPage<Drawn>(watch, 'window.__fleetwrightReplay.drawn()');
       expect(drawn.frame).toBe(t);
       const truth = truthAt(demo, t);
       const expected = Array.from(truth, (cell) => [(cell % demo.width) + 0.5, Math.floor(cell / demo.width) + 0.5]);
       expect(drawn.x.map((x, r) => [x, drawn.y[r]]), `tick ${t}`).toEqual(expected);
       // The pixel at each robot's centre has the colour of its recorded state.
       const centres = expected.map(([x, y]) => [Math.floor(x * drawn.pixelsPerCell), Math.floor(y * drawn.pixelsPerCell)]);
-      const pixels: number[][] = await watch.page.evaluate((points) => {
-        const context = (document.getElementById('floor') as HTMLCanvasElement).getContext('2d')!;
-        return points.map(([x, y]) => Array.from(context.getImageData(x, y, 1, 1).data));
-      }, centres);
+      const pixels = await inPage<number[][]>(
+        watch,
+        `(() => { const context = document.getElementById('floor').getContext('2d'); return ${JSON.stringify(centres)}.map(([x, y]) => Array.from(context.getImageData(x, y, 1, 1).data)); })()`,
+      );
       for (let r = 0; r < demo.robots; r++) {
         const state = robotStateNames[stateOfCode(demo.codes[t * demo.robots + r])];
         expect(hex(pixels[r]), `robot ${r} at tick ${t} (${state})`).toBe(stateColours[state]);
@@ -188,8 +193,8 @@ describe('replay viewer in Chromium', () => {
     // Hand trace (test/greedy-reactive.test.ts): stalled from 6 s, detected at 126 s, cleared.
     expect(await items.first().textContent()).toMatch(/deadlock: .*stalled from 0:06, detected 2:06.*cleared by the operator/);
     await items.first().locator('button').click();
-    expect(await watch.page.evaluate(() => window.__fleetwrightReplay!.frame())).toBe(6);
-    const drawn = await watch.page.evaluate(() => window.__fleetwrightReplay!.drawn());
+    expect(await inPage<number>(watch, 'window.__fleetwrightReplay.frame()')).toBe(6);
+    const drawn = await inPage<Drawn>(watch, 'window.__fleetwrightReplay.drawn()');
     expect([drawn.x, drawn.y]).toEqual([
       [4.5, 5.5],
       [2.5, 2.5],
@@ -208,10 +213,10 @@ describe('replay viewer in Chromium', () => {
     for (const file of [named.html, withoutPolicy]) {
       const watch = await openFile(browser, file);
       await ready(watch);
-      expect(await watch.page.evaluate(() => (window as unknown as { __pwned?: number }).__pwned)).toBeUndefined();
-      expect(await watch.page.evaluate(() => document.images.length)).toBe(0);
+      expect(await watch.page.evaluate('window.__pwned')).toBeUndefined();
+      expect(await watch.page.evaluate('document.images.length')).toBe(0);
       // The viewer's own script and its data block, nothing else.
-      expect(await watch.page.evaluate(() => document.scripts.length)).toBe(2);
+      expect(await watch.page.evaluate('document.scripts.length')).toBe(2);
       expect(await watch.page.locator('h1').textContent()).toBe('Replay: </script><img src=x onerror="window.__pwned = 3"><script>window.__pwned = 4</script>');
       expect(watch.pageErrors).toEqual([]);
       await watch.page.close();

@@ -17,7 +17,8 @@ export type PlotOptions = Plot.PlotOptions;
 
 /** Renders a Plot specification to SVG (or a figure with a legend) markup. */
 export function renderPlot(options: PlotOptions): string {
-  const { document } = parseHTML('<!doctype html><html><head></head><body></body></html>');
+  // linkedom's types name the DOM's Window, which the Node type check does not load.
+  const { document } = parseHTML('<!doctype html><html><head></head><body></body></html>') as unknown as { document: unknown };
   const node = Plot.plot({ style: { fontSize: '11px', background: 'white', color: '#111' }, ...options, document } as PlotOptions) as unknown as { outerHTML: string };
   return node.outerHTML;
 }
