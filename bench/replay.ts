@@ -52,7 +52,8 @@ export async function benchReplay(robots = 1000, seconds = 600): Promise<ReplayB
     const watch = await openFile(browser, html);
     // Code run inside the page is text: the Node-side type check has no DOM library, and tsx's
     // helpers must not leak into functions serialized to the page.
-    await watch.page.waitForFunction('window.__fleetwrightReplay?.ready === true', null, { timeout: 60_000 });
+    // Polled: waitForFunction would need eval, which the page's policy forbids.
+    while (!(await watch.page.evaluate('window.__fleetwrightReplay?.ready === true'))) await new Promise((resolve) => setTimeout(resolve, 50));
     const scrub = (await watch.page.evaluate(`(() => {
       const input = document.getElementById('scrubber');
       const start = performance.now();

@@ -65,7 +65,7 @@ function truthAt(recorded: Recorded, tick: number): Int32Array {
 }
 
 async function ready(watch: PageWatch): Promise<void> {
-  await watch.page.waitForFunction('window.__fleetwrightReplay?.ready === true', null, { timeout: 20_000 });
+  await waitFor(watch, 'window.__fleetwrightReplay?.ready === true');
 }
 
 /** What the viewer's test hook returns for the last drawn frame (positions in cell units, centres at +0.5). */
@@ -78,6 +78,15 @@ interface Drawn {
 
 // Code run inside the page is passed as text: the Node-side type check has no DOM library.
 const inPage = <T>(watch: PageWatch, expression: string): Promise<T> => watch.page.evaluate(expression) as Promise<T>;
+
+/** Polls an expression (waitForFunction would need eval, which the page's policy forbids). */
+async function waitFor(watch: PageWatch, expression: string, timeoutMs = 20_000): Promise<void> {
+  const deadline = Date.now() + timeoutMs;
+  while (!(await inPage<boolean>(watch, expression))) {
+    if (Date.now() > deadline) throw new Error(`timed out waiting for ${expression}`);
+    await new Promise((resolve) => setTimeout(resolve, 50));
+  }
+}
 
 let demo: Recorded;
 let corridor: Recorded;
@@ -128,7 +137,7 @@ describe('replay viewer in Chromium', () => {
     expect(watch.requests).toEqual([]);
     expect(await inPage<number>(watch, 'window.__fleetwrightReplay.frames')).toBe(601);
     await watch.page.click('#play');
-    await watch.page.waitForFunction('window.__fleetwrightReplay.frame() > 20', null, { timeout: 20_000 });
+    await waitFor(watch, 'window.__fleetwrightReplay.frame() > 20');
     expect(await inPage<boolean>(watch, 'window.__fleetwrightReplay.playing()')).toBe(true);
     expect(await watch.page.locator('#play').textContent()).toBe('Pause');
     await watch.page.click('#play');
