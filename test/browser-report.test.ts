@@ -119,6 +119,43 @@ describe('compare report in Chromium', () => {
   });
 });
 
+describe('size and sweep pages in Chromium', () => {
+  // Hand-written documents in the shapes of DESIGN §7 (size --json) and §8 (runs.jsonl); numbers invented.
+  it('size: one dot per fleet size, an interval bar where one exists, the target line and the recommendation', async () => {
+    const results = path.join(folder, 'size');
+    mkdirSync(results);
+    const size = JSON.parse(readFileSync(path.join(repositoryRoot, 'test', 'fixtures', 'size-result.json'), 'utf8'));
+    writeFileSync(path.join(results, 'size.json'), JSON.stringify(size));
+    ok(fleetwright('report', results, '--html', path.join(folder, 'size.html')));
+    const watch = await openFile(browser, path.join(folder, 'size.html'));
+    expect(watch.consoleErrors).toEqual([]);
+    expect(watch.requests).toEqual([]);
+    const count = (selector: string) => watch.page.locator(selector).count();
+    expect(await count('#fleet-size .mark-throughput-mean circle')).toBe(size.curve.length);
+    expect(await count('#fleet-size .mark-throughput-interval line')).toBe(size.curve.filter((c: { throughputPerHour: { low: number | null } }) => c.throughputPerHour.low !== null).length);
+    expect(await count('#fleet-size .mark-target-line line')).toBe(1);
+    expect(await count('#fleet-size .mark-recommended circle')).toBe(1);
+    expect((await watch.page.locator('[data-field="recommendedRobots"]').textContent())?.trim()).toBe(String(size.recommendedRobots));
+    expect((await watch.page.locator('[data-field="handFormulaRobots"]').textContent())?.trim()).toBe(String(size.handFormulaRobots));
+    await watch.page.screenshot({ path: artifact('report-size.png'), fullPage: true });
+    await watch.page.close();
+  });
+
+  it('sweep: one point per parameter combination, one line per policy', async () => {
+    const results = path.join(folder, 'sweep');
+    mkdirSync(results);
+    const lines = readFileSync(path.join(repositoryRoot, 'test', 'fixtures', 'sweep-runs.jsonl'), 'utf8');
+    writeFileSync(path.join(results, 'runs.jsonl'), lines);
+    ok(fleetwright('report', results, '--html', path.join(folder, 'sweep.html')));
+    const watch = await openFile(browser, path.join(folder, 'sweep.html'));
+    expect(watch.consoleErrors).toEqual([]);
+    const count = (selector: string) => watch.page.locator(selector).count();
+    expect(await count('#sweep-curve .mark-throughput-mean circle')).toBe(lines.trim().split('\n').length);
+    expect(await count('h2#points + table.data tbody tr')).toBe(6);
+    await watch.page.close();
+  });
+});
+
 describe('markup in user strings', () => {
   const payloads = ['<script>window.__pwned = 1</script>', '"><img src=x onerror="window.__pwned = 2">'];
   const small = readFileSync(path.join(repositoryRoot, 'test', 'fixtures', 'cli-small-hall.yaml'), 'utf8');
