@@ -23,16 +23,17 @@ export interface ReportInputRun {
 
 /**
  * `runs` holds one run (`run --out`) or one per policy (`compare --out`, which adds a policy
- * column); `cutIntervals` is the warm-up cut the summary used; `argv` the command's arguments.
+ * column); `cutIntervals[i]` is the warm-up cut (in sample intervals) the summary of run i
+ * used; `argv` the command's arguments.
  */
-export function writeReportInputs(directory: string, runs: ReportInputRun[], cutIntervals: number, argv: readonly string[]): void {
+export function writeReportInputs(directory: string, runs: ReportInputRun[], cutIntervals: readonly number[], argv: readonly string[]): void {
   const compare = runs.length > 1;
   const layout = parseLayout(runs[0].scenario.layoutText);
   const policy = (run: ReportInputRun) => (compare ? run.scenario.policy.name : undefined);
   writeFileAtomic(path.join(directory, 'cells.csv'), cellsCsv(runs.map((run) => ({ policy: policy(run), rows: cellRows(layout, run.records) }))));
   writeFileAtomic(
     path.join(directory, 'lead-times.csv'),
-    leadTimesCsv(runs.map((run) => ({ policy: policy(run), bins: leadTimeHistogram(leadTimesAfterWarmup(run.records, cutIntervals)) }))),
+    leadTimesCsv(runs.map((run, i) => ({ policy: policy(run), bins: leadTimeHistogram(leadTimesAfterWarmup(run.records, cutIntervals[i])) }))),
   );
   writeFileAtomic(path.join(directory, 'context.json'), `${toJson(runContext(runs[0].scenario, argv))}\n`);
 }

@@ -48,7 +48,7 @@ export async function compareCommand(scenarioPath: string, policyList: string, j
   if (outDirectory !== undefined) {
     writeFileAtomic(path.join(outDirectory, 'comparison.json'), `${toJson(document)}\n`);
     writeFileAtomic(path.join(outDirectory, 'differences.csv'), stringify(comparison.differences.map((d) => ({ ...d })), { header: true }));
-    writeReportInputs(outDirectory, runs, comparison.warmup.intervals, process.argv.slice(2));
+    writeReportInputs(outDirectory, runs, comparison.policies.map((p) => p.warmup.intervals), process.argv.slice(2));
   }
   const collided = runs.find((run) => run.records.some((r) => r.collisions > 0));
   if (collided) throw new RunError(`the collision validator counted collisions under policy ${collided.scenario.policy.name}; that policy is defective`);

@@ -40,7 +40,7 @@ export async function runCommand(scenarioPath: string, json: boolean, outDirecto
     writeFileAtomic(path.join(outDirectory, 'replications.csv'), replicationsCsv(records, parts.perReplication));
     writeFileAtomic(path.join(outDirectory, 'throughput.csv'), throughputSeriesCsv(records, parts.cutIntervals));
     writeFileAtomic(path.join(outDirectory, 'stations.csv'), stationsCsv(parts.summary));
-    writeReportInputs(outDirectory, [{ scenario, records }], parts.cutIntervals, process.argv.slice(2));
+    writeReportInputs(outDirectory, [{ scenario, records }], [parts.cutIntervals], process.argv.slice(2));
     if (!json) process.stderr.write(`results written to ${outDirectory}/ (summary.json, replications.csv, throughput.csv, stations.csv, cells.csv, lead-times.csv, context.json)\n`);
   }
   if (recording) {

@@ -55,7 +55,7 @@ export function comparePage(results: ResultsFolder): { title: string; body: stri
   parts.push(
     facts([
       ['demand', demandText(scenario)],
-      ['warm-up cut', `${duration(first.warmupSeconds ?? 0)}, the same for every policy so that paired windows cover the same time`],
+      ['warm-up cut', summaries.map((s) => `${s.policy}: ${duration(s.warmupSeconds ?? 0)}`).join('; ')],
     ]),
   );
 

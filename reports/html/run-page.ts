@@ -58,6 +58,7 @@ export function runPage(results: ResultsFolder): { title: string; body: string }
       ['demand', demandText(scenario)],
       ['robot speed', scenario ? `${scenario.units.robotSpeedMps} m/s, cells of ${scenario.units.cellMeters} m` : 'unknown'],
       ['simulated', `${summary.replications} x ${duration(summary.hours * 3600)}, warm-up cut ${duration(summary.warmupSeconds)} (${summary.warmup?.method ?? 'unknown'})`],
+      ['stable', summary.stable === undefined ? 'not assessed by this fleetwright' : summary.stable === null ? 'not assessed (capacity run: demand saturates the fleet)' : `${summary.stable ? 'yes' : 'no'}, backlog growth ${intervalText(summary.backlogGrowthPerHour, 1)} tasks per hour`],
       ['tasks', `${summary.tasks.released} released, ${summary.tasks.delivered} delivered, ${summary.tasks.open} open at the end (all replications, warm-up included)`],
     ]),
   );
