@@ -105,7 +105,9 @@ describe('compare report in Chromium', () => {
     expect(watch.requests).toEqual([]);
     const comparison = JSON.parse(readFileSync(path.join(folder, 'compare', 'comparison.json'), 'utf8'));
     const count = (selector: string) => watch.page.locator(selector).count();
-    for (const metric of ['throughputPerHour', 'leadTimeSeconds', 'stationStarvedFraction', 'deadlocks']) {
+    const metrics = [...new Set(comparison.differences.map((d: { metric: string }) => d.metric))] as string[];
+    expect(metrics).toEqual(expect.arrayContaining(['throughputPerHour', 'leadTimeSeconds', 'stationStarvedFraction', 'deadlocks']));
+    for (const metric of metrics) {
       const rows = comparison.differences.filter((d: { metric: string; mean: number | null }) => d.metric === metric && d.mean !== null);
       expect(await count(`#difference-${metric} .mark-difference-mean circle`), metric).toBe(rows.length);
     }

@@ -21,6 +21,7 @@ import type { Json, ResultsFolder } from './results-folder.ts';
 const metricViews: Record<string, { title: string; axisLabel: string; digits: number; scale?: number; unit: string }> = {
   throughputPerHour: { title: 'Throughput', axisLabel: 'difference in throughput (tasks/h)', digits: 1, unit: 'tasks/h' },
   leadTimeSeconds: { title: 'Mean lead time', axisLabel: 'difference in mean lead time (s)', digits: 1, unit: 's' },
+  leadTimeP95Seconds: { title: '95th percentile of lead time', axisLabel: 'difference in p95 lead time (s)', digits: 1, unit: 's' },
   stationStarvedFraction: { title: 'Stations idle while work waited', axisLabel: 'difference in share of time (percentage points)', digits: 2, scale: 100, unit: 'percentage points' },
   deadlocks: { title: 'Deadlock episodes', axisLabel: 'difference in episodes per replication', digits: 2, unit: 'episodes per replication' },
 };
@@ -79,11 +80,13 @@ export function comparePage(results: ResultsFolder): { title: string; body: stri
       `Each interval is a paired-t interval on the per-replication differences a − b, at the Bonferroni-adjusted level ${typeof level === 'number' ? `${(level * 100).toFixed(2)}%` : ''} so that all of them hold together at ${Math.round(first.confidence * 100)}%. Filled vermillion: the interval excludes zero (a significant difference).`,
     )}</p>`,
   );
-  for (const [metric, view] of Object.entries(metricViews)) {
+  // Metrics in the order the comparison lists them; one the page has no words for is still drawn, under its field name.
+  for (const metric of [...new Set(differences.map((d) => String(d.metric)))]) {
+    const view = metricViews[metric] ?? { title: metric, axisLabel: `difference in ${metric}`, digits: 2, unit: metric };
     const rows = differences.filter((d) => d.metric === metric);
-    if (rows.length === 0) continue;
     const chart = differenceChart(rows, view);
-    parts.push(chartFigure(`difference-${metric}`, `${view.title}: a − b`, `Dot: mean difference; bar: its interval; dashed line: no difference.`, chart.svg, chart.table));
+    const notes = [...new Set(rows.map((d) => d.note).filter((n): n is string => typeof n === 'string' && n.length > 0))];
+    parts.push(chartFigure(`difference-${metric}`, `${view.title}: a − b`, `Dot: mean difference; bar: its interval; dashed line: no difference.${notes.length > 0 ? ` ${notes.join(' ')}` : ''}`, chart.svg, chart.table));
   }
 
   parts.push('<h2 id="robot-time">Robot time</h2>');

@@ -20,6 +20,7 @@ export function differenceChart(rows: Json[], options: { axisLabel: string; digi
     confidence: d.confidence,
     unpaired: d.unpairedHalfWidth === null || d.unpairedHalfWidth === undefined ? null : d.unpairedHalfWidth * scale,
     halfWidth: d.halfWidth === null ? null : d.halfWidth * scale,
+    note: typeof d.note === 'string' ? d.note : '',
   }));
   const ranged = data.filter((d) => d.low !== null && d.high !== null);
   const svg = renderPlot({
@@ -43,6 +44,7 @@ export function differenceChart(rows: Json[], options: { axisLabel: string; digi
       { label: 'level', value: (d) => `${fixed(d.confidence * 100, 2)}%`, numeric: true },
       { label: 'significant', value: (d) => (d.significant ? 'yes' : 'no') },
       { label: 'unpaired ± (for scale)', value: (d) => (d.unpaired === null ? '–' : fixed(d.unpaired, options.digits)), numeric: true },
+      ...(data.some((d) => d.note !== '') ? [{ label: 'note', value: (d: (typeof data)[number]) => d.note }] : []),
     ],
     data,
   );
