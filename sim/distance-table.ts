@@ -6,6 +6,7 @@
  * Unreachable and blocked cells hold `unreachable`.
  */
 import type { Layout } from './layout.ts';
+import { DistanceFields } from './distance-field.ts';
 
 export const unreachable = 0x3fffffff;
 
@@ -38,6 +39,7 @@ export class DistanceTables {
   private readonly queue: Int32Array<ArrayBufferLike>;
   readonly capacity: number;
   builds = 0;
+  private fieldCache: DistanceFields | null = null;
 
   /** `budgetBytes` bounds the cache (default 256 MiB); at least 16 tables are kept. */
   constructor(
@@ -67,6 +69,16 @@ export class DistanceTables {
     }
     this.cache.set(target, table);
     return table;
+  }
+
+  /**
+   * Compact per-goal fields (sim/distance-field.ts), for callers that only compare
+   * neighbouring cells (PIBT's move order, the engine's progress watch): with thousands of
+   * live goals they fit where one table per goal does not. Created on first use.
+   */
+  get fields(): DistanceFields {
+    if (this.fieldCache === null) this.fieldCache = new DistanceFields(this.layout);
+    return this.fieldCache;
   }
 
   distance(from: number, to: number): number {

@@ -24,6 +24,7 @@ import { CollisionValidator } from './validator.ts';
 import { MetricsRecorder, type DeadlockEpisode } from './metrics.ts';
 import { ArrivalProcess, makeHandlingSampler, makePointChooser } from './demand.ts';
 import { RunError } from './errors.ts';
+import { GoalProgress } from './goal-progress.ts';
 
 const EventKind = { Motion: 0, HandlingDone: 1, Release: 2, Recover: 3, Wake: 4, Check: 5, End: 6 } as const;
 
@@ -294,13 +295,13 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
   // goal that makes none for deadlockTicks is stalled; neighbouring stalled robots form one
   // episode. This also catches livelocks (robots that move without getting closer).
   const lastProgress = new Int32Array(robots);
-  const bestDistance = new Int32Array(robots).fill(0x3fffffff);
+  const goalProgress = new GoalProgress(robots, distances.fields);
   const episodeOf = new Int32Array(robots).fill(-1);
   const stallStart = new Int32Array(robots);
   const episodes: (DeadlockEpisode & { members: Set<number> })[] = [];
   function progressed(robot: number, t: number): void {
     lastProgress[robot] = t;
-    bestDistance[robot] = 0x3fffffff;
+    goalProgress.reset(robot);
     if (episodeOf[robot] >= 0) leaveEpisode(robot, t, false);
   }
   const leaveEpisode = (robot: number, t: number, cleared: boolean): void => {
@@ -354,7 +355,7 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
       validator.relocate(r, target);
       leaveEpisode(r, t, true);
       lastProgress[r] = t;
-      bestDistance[r] = 0x3fffffff;
+      goalProgress.reset(r);
       policy.onRelocated?.(r, t);
       arriveIfAtGoal(r, t);
     }
@@ -438,9 +439,7 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
         startHandling(r, t);
         continue;
       }
-      const distance = distances.to(goal)[cell];
-      if (distance < bestDistance[r]) {
-        bestDistance[r] = distance;
+      if (goalProgress.observe(r, goal, cell)) {
         lastProgress[r] = t;
         if (episodeOf[r] >= 0) leaveEpisode(r, t, false);
       }

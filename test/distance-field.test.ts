@@ -1,0 +1,215 @@
+import { createRequire } from 'node:module';
+import seedrandom from 'seedrandom';
+import { describe, expect, it } from 'vitest';
+import { DistanceFields, type DistanceField } from '../sim/distance-field.ts';
+import { distanceTable, unreachable } from '../sim/distance-table.ts';
+import { GoalProgress } from '../sim/goal-progress.ts';
+import { buildLayout, CellKind, parseLayout, type Layout } from '../sim/layout.ts';
+
+// Outside reference: the `pathfinding` npm library (BreadthFirstFinder, 4-connected, no
+// diagonals), an independent implementation of grid shortest paths; the full breadth-first
+// table of sim/distance-table.ts is checked against the same library in distance-table.test.ts.
+const require = createRequire(import.meta.url);
+const PF = require('pathfinding') as {
+  Grid: new (width: number, height: number, matrix: number[][]) => { clone(): unknown };
+  BreadthFirstFinder: new (options: { allowDiagonal: boolean }) => { findPath(sx: number, sy: number, ex: number, ey: number, grid: unknown): number[][] };
+};
+
+function randomLayout(random: () => number, width: number, height: number, density: number): { layout: Layout; kind: Uint8Array } {
+  const kind = new Uint8Array(width * height);
+  for (let c = 0; c < kind.length; c++) kind[c] = random() < density ? CellKind.Blocked : CellKind.Floor;
+  return { layout: buildLayout(width, height, kind), kind };
+}
+
+/**
+ * Compares every cell the field covers with the full table (reachability, distance mod 4,
+ * neighbour ranks); returns how many cells were compared and the first disagreement, if any.
+ */
+function disagreement(layout: Layout, field: DistanceField, table: Int32Array): { checked: number; first: string | null } {
+  let checked = 0;
+  const fail = (what: string) => ({ checked, first: what });
+  for (const c of layout.floorCells) {
+    if (!field.covers(c)) continue;
+    checked++;
+    if (field.reaches(c) !== table[c] < unreachable) return fail(`reaches(${c})`);
+    if (table[c] >= unreachable) continue;
+    if (field.mod4(c) !== (table[c] & 3)) return fail(`mod4(${c}) = ${field.mod4(c)}, table ${table[c]}`);
+    if (!field.coversAround(c)) continue;
+    const farther = field.fartherAround(c);
+    for (let d = 0; d < 4; d++) {
+      const n = layout.neighbors[c * 4 + d];
+      if (n < 0) continue;
+      if (field.step(c, n) !== table[n] - table[c]) return fail(`step(${c}, ${n})`);
+      if (((farther >> d) & 1) !== (table[n] > table[c] ? 1 : 0)) return fail(`fartherAround(${c}) bit ${d}`);
+    }
+  }
+  return { checked, first: null };
+}
+
+function expectAgrees(layout: Layout, field: DistanceField, table: Int32Array): number {
+  const { checked, first } = disagreement(layout, field, table);
+  expect(first).toBeNull();
+  return checked;
+}
+
+describe('DistanceFields (windowed breadth-first fields, distance mod 4)', () => {
+  it('agrees with full breadth-first tables on every covered cell of 150 random floors, windows of margin 1', () => {
+    // Margin 1 makes windows tight, so the exactness check must catch every window that a
+    // path around its edge would beat, and grow it.
+    const random = seedrandom('distance-fields');
+    let checked = 0;
+    let grown = 0;
+    let windowed = 0;
+    for (let g = 0; g < 150; g++) {
+      const width = 4 + Math.floor(random() * 30);
+      const height = 4 + Math.floor(random() * 20);
+      const { layout } = randomLayout(random, width, height, 0.1 + random() * 0.35);
+      if (layout.floorCells.length < 2) continue;
+      const fields = new DistanceFields(layout, undefined, 1);
+      for (let k = 0; k < 5; k++) {
+        const goal = layout.floorCells[Math.floor(random() * layout.floorCells.length)];
+        const table = distanceTable(layout, goal);
+        for (let q = 0; q < 4; q++) {
+          const near = layout.floorCells[Math.floor(random() * layout.floorCells.length)];
+          const field = fields.to(goal, near);
+          expect(field.coversAround(near)).toBe(true);
+          if (field.width * field.height < width * height) windowed++;
+          const result = disagreement(layout, field, table);
+          if (result.first !== null) expect.fail(`floor ${g}, goal ${goal}, near ${near}: ${result.first}`);
+          checked += result.checked;
+        }
+      }
+      grown += fields.windowsGrown;
+    }
+    expect(checked).toBeGreaterThan(20000);
+    // The suite exercises both outcomes of the check.
+    expect(grown).toBeGreaterThan(50);
+    expect(windowed).toBeGreaterThan(500);
+  });
+
+  it('mod 4 matches the path lengths of the pathfinding library', () => {
+    const random = seedrandom('distance-fields-pathfinding');
+    const finder = new PF.BreadthFirstFinder({ allowDiagonal: false });
+    let compared = 0;
+    for (let g = 0; g < 40; g++) {
+      const width = 5 + Math.floor(random() * 25);
+      const height = 5 + Math.floor(random() * 15);
+      const { layout, kind } = randomLayout(random, width, height, 0.25);
+      if (layout.floorCells.length < 2) continue;
+      const matrix = Array.from({ length: height }, (_, y) => Array.from({ length: width }, (_, x) => (kind[y * width + x] === CellKind.Blocked ? 1 : 0)));
+      const grid = new PF.Grid(width, height, matrix);
+      const fields = new DistanceFields(layout, undefined, 2);
+      for (let s = 0; s < 10; s++) {
+        const goal = layout.floorCells[Math.floor(random() * layout.floorCells.length)];
+        const source = layout.floorCells[Math.floor(random() * layout.floorCells.length)];
+        const field = fields.to(goal, source);
+        const path = finder.findPath(source % width, Math.floor(source / width), goal % width, Math.floor(goal / width), grid.clone());
+        expect(field.reaches(source)).toBe(path.length > 0);
+        if (path.length > 0) expect(field.mod4(source)).toBe((path.length - 1) % 4);
+        compared++;
+      }
+    }
+    expect(compared).toBeGreaterThan(300);
+  });
+
+  it('grows a window that a wall cuts in two, and then gives the distance around the wall', () => {
+    // Goal at 2:4, robot at 12:4; the wall in column 7 is open only in rows 0-1, outside the
+    // first window (rows 3-5 with margin 1). By hand: up 3 rows to row 1, 10 columns west,
+    // down 3 rows = 16 cells (Manhattan distance 10).
+    const rows = ['...............', '...............'];
+    for (let y = 2; y < 9; y++) rows.push('.......#.......');
+    const layout = parseLayout(rows.join('\n'));
+    const goal = 4 * 15 + 2;
+    const robot = 4 * 15 + 12;
+    const fields = new DistanceFields(layout, undefined, 1);
+    const field = fields.to(goal, robot);
+    expect(fields.windowsGrown).toBeGreaterThan(0);
+    expect(field.reaches(robot)).toBe(true);
+    expect(field.mod4(robot)).toBe(16 % 4);
+    // Moving north from the robot is one step closer (the way round the wall goes north).
+    expect(field.step(robot, robot - 15)).toBe(-1);
+    expect(field.step(robot, robot - 1)).toBe(-1);
+    expect(field.step(robot, robot + 15)).toBe(1);
+  });
+
+  it('keeps a window when it is exact: an open floor needs no growth', () => {
+    const layout = parseLayout(Array.from({ length: 30 }, () => '.'.repeat(60)).join('\n'));
+    const fields = new DistanceFields(layout, undefined, 2);
+    const field = fields.to(10 * 60 + 5, 20 * 60 + 40);
+    expect(fields.windowsGrown).toBe(0);
+    // Columns 3..42, rows 8..22: 40 x 15 cells, a third of the floor.
+    expect([field.x0, field.y0, field.width, field.height]).toEqual([3, 8, 40, 15]);
+    expect(fields.cellsSearched).toBe(40 * 15);
+  });
+
+  it('asked about a cell outside its window, a field grows and still covers what it covered', () => {
+    const layout = parseLayout(Array.from({ length: 40 }, () => '.'.repeat(40)).join('\n'));
+    const fields = new DistanceFields(layout, undefined, 2);
+    const goal = 5 * 40 + 5;
+    const first = fields.to(goal, 8 * 40 + 9);
+    const covered = layout.floorCells.filter((c) => first.covers(c));
+    const second = fields.to(goal, 35 * 40 + 30);
+    expect(second).not.toBe(first);
+    expect(fields.enlargements).toBe(1);
+    for (const c of covered) expect(second.covers(c)).toBe(true);
+    expect(expectAgrees(layout, second, distanceTable(layout, goal))).toBeGreaterThan(covered.length);
+    // A cell inside the cached window reuses it.
+    expect(fields.to(goal, 6 * 40 + 6)).toBe(second);
+  });
+
+  it('a goal on a blocked cell reaches nothing', () => {
+    const layout = parseLayout(['.....', '..#..', '.....'].join('\n'));
+    const field = new DistanceFields(layout).to(7, 0);
+    for (const c of layout.floorCells) expect(field.reaches(c)).toBe(false);
+  });
+});
+
+describe('GoalProgress', () => {
+  it('reports progress exactly when the true distance to the goal reaches a new minimum, on random walks', () => {
+    const random = seedrandom('goal-progress');
+    let progressSeen = 0;
+    let stepsSeen = 0;
+    for (let g = 0; g < 60; g++) {
+      const width = 6 + Math.floor(random() * 30);
+      const height = 6 + Math.floor(random() * 20);
+      const { layout } = randomLayout(random, width, height, 0.2);
+      if (layout.floorCells.length < 2) continue;
+      const progress = new GoalProgress(1, new DistanceFields(layout, undefined, 1));
+      let cell = layout.floorCells[Math.floor(random() * layout.floorCells.length)];
+      for (let leg = 0; leg < 4; leg++) {
+        const goal = layout.floorCells[Math.floor(random() * layout.floorCells.length)];
+        // The engine resets the watch whenever a robot's phase (and so its goal) changes.
+        progress.reset(0);
+        const table = distanceTable(layout, goal);
+        let best = Infinity;
+        for (let t = 0; t < 120; t++) {
+          // Mostly towards the goal, sometimes away or standing still, like a robot in traffic.
+          const options = [cell];
+          for (let d = 0; d < 4; d++) {
+            const n = layout.neighbors[cell * 4 + d];
+            if (n >= 0) options.push(n);
+          }
+          const closer = options.filter((n) => table[n] < table[cell]);
+          cell = closer.length > 0 && random() < 0.6 ? closer[Math.floor(random() * closer.length)] : options[Math.floor(random() * options.length)];
+          const expected = table[cell] < unreachable && table[cell] < best;
+          if (table[cell] < unreachable) best = Math.min(best, table[cell]);
+          if (progress.observe(0, goal, cell) !== expected) expect.fail(`floor ${g}, leg ${leg}, tick ${t}: expected progress ${expected}`);
+          if (expected) progressSeen++;
+          stepsSeen++;
+        }
+      }
+    }
+    expect(stepsSeen).toBeGreaterThan(20000);
+    expect(progressSeen).toBeGreaterThan(2000);
+  });
+
+  it('after a reset the next observation counts as progress', () => {
+    const layout = parseLayout(['.....', '.....'].join('\n'));
+    const progress = new GoalProgress(1, new DistanceFields(layout));
+    expect(progress.observe(0, 4, 0)).toBe(true);
+    expect(progress.observe(0, 4, 0)).toBe(false);
+    expect(progress.observe(0, 4, 5)).toBe(false); // one step farther
+    progress.reset(0);
+    expect(progress.observe(0, 4, 5)).toBe(true);
+  });
+});
