@@ -33,6 +33,11 @@
  * cell and no robot enters the cell of a robot entering its own, so every tick is free of
  * vertex and swap collisions by construction (the engine's validator checks anyway).
  *
+ * Distances to goals come from compact per-goal fields (sim/distance-field.ts: distance mod
+ * 4 in a window, exact), fetched once per goal change and kept per robot: with thousands of
+ * robots heading for thousands of different drops, one full table per goal neither fits in
+ * memory nor in a bounded cache.
+ *
  * Inheritance chains are walked with an explicit stack, not recursion: a chain can hold
  * every robot (one frame each), so recursion depth would grow with the fleet. Each robot
  * is on the stack at most once per tick and tries at most 5 cells, so a tick is O(robots * 5)
@@ -46,6 +51,7 @@
 import { z } from 'zod';
 import type { Policy, PolicyContext, PolicyOptionDoc } from '../../sim/policy.ts';
 import { unreachable } from '../../sim/distance-table.ts';
+import type { DistanceField } from '../../sim/distance-field.ts';
 import { Phase, isHandling } from '../../sim/world.ts';
 
 export const pibtOptions = z.object({}).strict();
@@ -73,8 +79,8 @@ export class Pibt implements Policy {
 
   /** The goal each robot pursued at the last step (task goal or parking claim), -1 for none. */
   private readonly goal: Int32Array;
-  /** Distance table of each robot's goal, fetched on first use (skips the cache lookup in the hot loop). */
-  private readonly goalTable: (Int32Array | null)[];
+  /** Distance field of each robot's goal, fetched on first use (skips the cache lookup in the hot loop). */
+  private readonly goalField: (DistanceField | null)[];
   private readonly band: Uint8Array;
   /** The unique fractional part of each robot's priority. */
   private readonly tieBreak: Float64Array;
@@ -125,7 +131,7 @@ export class Pibt implements Policy {
     this.stack = new Int32Array(robots);
     this.sortKey = new Int32Array(slots);
     this.goal = new Int32Array(robots).fill(-1);
-    this.goalTable = new Array<Int32Array | null>(robots).fill(null);
+    this.goalField = new Array<DistanceField | null>(robots).fill(null);
     this.band = new Uint8Array(robots);
     this.changedMark = new Uint8Array(robots);
     this.parkingOf = new Int32Array(robots).fill(-1);
@@ -378,7 +384,7 @@ export class Pibt implements Policy {
       }
       if (goal !== this.goal[r]) {
         this.goal[r] = goal;
-        this.goalTable[r] = null;
+        this.goalField[r] = null;
         changed.push(r);
       }
     }
@@ -482,15 +488,16 @@ export class Pibt implements Policy {
     this.cursor[r] = 0;
     const cell = world.robotCell[r];
     const goal = this.goal[r];
-    let table = this.goalTable[r];
-    if (table === null && goal >= 0) table = this.goalTable[r] = this.context.distances.to(goal);
+    let field = this.goalField[r];
+    if (goal >= 0 && (field === null || !field.coversAround(cell))) field = this.goalField[r] = this.context.distances.fields.to(goal, cell);
+    // Bit d: the neighbour in direction d is farther from the goal; -1: no goal to rank by.
+    const farther = field !== null && field.reaches(cell) ? field.fartherAround(cell) : -1;
     const occupant = world.occupant;
     const candidates = this.candidates;
     const base = r * slots;
     const keys = this.sortKey;
     // Neighbours differ from the own cell's distance by exactly one, so the distance part of
     // the key is 0 (closer), 1 (stay) or 2 (farther); without a goal staying comes first.
-    const here = table === null ? 0 : table[cell];
     let mix = this.hashSeed ^ Math.imul(tick, 0x9e3779b1);
     mix = Math.imul(mix ^ r, 0x85ebca6b);
     let count = 0;
@@ -498,7 +505,7 @@ export class Pibt implements Policy {
       const v = d < 0 ? cell : neighbors[cell * 4 + d];
       if (v < 0) continue;
       // Distance first, then cells empty now, then a seeded hash of (tick, robot, cell).
-      const step = v === cell ? 1 : table === null ? 2 : table[v] - here + 1;
+      const step = v === cell ? 1 : farther < 0 ? 2 : (farther >> d) & 1 ? 2 : 0;
       const busy = v !== cell && occupant[v] >= 0 ? 1 : 0;
       let h = Math.imul(mix ^ (mix >>> 13) ^ v, 0xc2b2ae35);
       h ^= h >>> 16;
