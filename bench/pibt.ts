@@ -35,7 +35,7 @@ export function benchPibt(hours = 1, robots = 1000): PibtBenchRow {
   const layoutText = generateSortationHall({ width: 150, height: 80, parking: robots });
   const scenario = makeScenario({ layout: layoutText, robots, policy: 'pibt', hours, pickupSeconds: 4, dropSeconds: 3 });
   const layout = parseLayout(layoutText);
-  const record = runReplication({ scenario, layout, distances: new DistanceTables(layout), policy: pibt, policyOptions: {} }, 0);
+  const record = runReplication({ scenario, layout, distances: new DistanceTables(layout), policy: pibt, policyOptions: pibt.options.parse({}) }, 0);
   return {
     name: 'pibt',
     policy: 'pibt',

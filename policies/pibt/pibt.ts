@@ -5,15 +5,13 @@
  * per tick and reserves nothing beyond t + 1.
  *
  * Goals. A robot holding a task heads for its task goal (world.goalOf). Open tasks go to
- * idle robots by a simple nearest rule, run whenever the open list or a robot's task
- * changes (world.version): when idle robots are at least as many as open tasks, each open
- * task in release order takes the nearest idle robot (grid distance to the pickup, ties by
- * robot index); otherwise (a backlog) each idle robot in index order takes the nearest open
- * task (ties: the oldest). Under a sustained backlog far pickups can wait long; that is the
- * rule's known cost. One run of the rule costs O(open tasks x idle robots) when tasks
- * choose and O(open tasks + idle robots x pickup cells) when robots choose. An idle robot
- * claims the nearest unclaimed parking spot (breadth-first search from its cell) and heads
- * there; with no spot free it rests where it stands.
+ * idle robots whenever the open list or a robot's task changes (world.version), by the rule
+ * of dispatch.ts: with few open tasks each takes the nearest idle robot; under a backlog
+ * each idle robot takes the oldest task of the pickup station with the lowest cost of
+ * distance, queued handling and an ageing credit (as in flow-batch's epoch assignment), so
+ * every station keeps being served. An idle robot claims the nearest unclaimed parking spot
+ * (breadth-first search from its cell) and heads there; with no spot free it rests where it
+ * stands.
  *
  * Priorities (paper, §3): ticks elapsed since the robot's goal last changed plus a unique
  * fraction in [0, 1) drawn once from the policy's random stream; a robot whose goal
@@ -50,13 +48,23 @@
  */
 import { z } from 'zod';
 import type { Policy, PolicyContext, PolicyOptionDoc } from '../../sim/policy.ts';
-import { unreachable } from '../../sim/distance-table.ts';
+import { Dispatcher } from './dispatch.ts';
 import type { DistanceField } from '../../sim/distance-field.ts';
 import { Phase, isHandling } from '../../sim/world.ts';
 
-export const pibtOptions = z.object({}).strict();
+export const pibtOptions = z
+  .object({
+    ageWeight: z.number().nonnegative().finite().default(0.1),
+    queueWeight: z.number().nonnegative().finite().default(1),
+    maxStations: z.number().int().positive().default(64),
+  })
+  .strict();
 export type PibtOptions = z.infer<typeof pibtOptions>;
-export const pibtOptionDocs: PolicyOptionDoc[] = [];
+export const pibtOptionDocs: PolicyOptionDoc[] = [
+  { name: 'ageWeight', default: 0.1, unit: 'cells/s', description: "under a backlog: cost credit per second a station's oldest open task has waited, so no station starves; 0 = nearest station" },
+  { name: 'queueWeight', default: 1, unit: 'ratio', description: 'under a backlog: cost of a second of pickup handling already queued at a station, relative to a second of driving; 0 ignores queues' },
+  { name: 'maxStations', default: 64, unit: 'stations', description: 'pickup stations with the oldest open tasks compared per dispatch pass' },
+];
 
 /** Scheduling classes, in the order they plan; handling robots are fixed before anyone plans. */
 const Band = { Task: 0, ToParking: 1, Resting: 2, Handling: 3 } as const;
@@ -106,6 +114,7 @@ export class Pibt implements Policy {
   private readonly isParking: Uint8Array;
 
   private readonly idle: number[] = [];
+  private readonly dispatcher: Dispatcher;
   private assignedVersion = -1;
   private readonly hashSeed: number;
 
@@ -117,9 +126,10 @@ export class Pibt implements Policy {
 
   constructor(
     private readonly context: PolicyContext,
-    _options: PibtOptions,
+    options: PibtOptions,
   ) {
     const { world, layout } = context;
+    this.dispatcher = new Dispatcher(world, context.distances, context.tickSeconds, options);
     const robots = world.robotCount;
     this.robots = robots;
     this.next = new Int32Array(robots).fill(-1);
@@ -177,7 +187,7 @@ export class Pibt implements Policy {
     const { world } = this.context;
     const robots = this.robots;
     if (world.version !== this.assignedVersion) {
-      this.assignOpenTasks();
+      this.assignOpenTasks(tick);
       this.assignedVersion = world.version;
     }
     this.updateGoals();
@@ -240,75 +250,17 @@ export class Pibt implements Policy {
 
   // Assignment ---------------------------------------------------------------------------
 
-  /** The nearest rule described in the header. */
-  private assignOpenTasks(): void {
-    const { world, distances } = this.context;
-    const open = world.openTasks;
-    if (open.length === 0) return;
+  /** Hands open tasks to idle robots by the rule of dispatch.ts. */
+  private assignOpenTasks(tick: number): void {
+    const { world } = this.context;
+    if (world.openTasks.length === 0) return;
     const idle = this.idle;
     idle.length = 0;
     for (let r = 0; r < this.robots; r++) if (world.robotPhase[r] === Phase.Idle && world.robotTask[r] < 0) idle.push(r);
-    if (idle.length === 0) return;
-
-    if (idle.length >= open.length) {
-      // Tasks choose robots. Saturated demand appends a task on every assignment, so the
-      // live list is walked; an assigned task leaves it at index i.
-      let i = 0;
-      while (i < open.length && idle.length > 0) {
-        const task = open[i];
-        const table = distances.to(world.taskPickup[task]);
-        let best = -1;
-        let bestDistance = unreachable;
-        for (let k = 0; k < idle.length; k++) {
-          const r = idle[k];
-          const d = table[world.robotCell[r]];
-          if (d < bestDistance || (d === bestDistance && best >= 0 && r < idle[best])) {
-            bestDistance = d;
-            best = k;
-          }
-        }
-        if (best < 0) {
-          i++;
-          continue;
-        }
-        const robot = idle[best];
-        idle[best] = idle[idle.length - 1];
-        idle.pop();
-        this.give(robot, task);
-      }
-    } else {
-      // Robots choose tasks, in robot order. Open tasks are grouped by pickup cell, oldest
-      // first, so a robot compares pickup cells (few) rather than tasks (many).
-      const groups = new Map<number, number[]>();
-      for (const task of open) {
-        const pickup = world.taskPickup[task];
-        const group = groups.get(pickup);
-        if (group) group.push(task);
-        else groups.set(pickup, [task]);
-      }
-      const pickups = [...groups.keys()];
-      const tables = pickups.map((c) => distances.to(c));
-      const heads = new Int32Array(pickups.length);
-      const older = (a: number, b: number) => world.taskRelease[a] < world.taskRelease[b] || (world.taskRelease[a] === world.taskRelease[b] && a < b);
-      for (const robot of idle) {
-        const cell = world.robotCell[robot];
-        let best = -1;
-        let bestDistance = unreachable;
-        for (let k = 0; k < pickups.length; k++) {
-          const group = groups.get(pickups[k])!;
-          if (heads[k] >= group.length) continue;
-          const d = tables[k][cell];
-          if (d < bestDistance || (d === bestDistance && best >= 0 && older(group[heads[k]], groups.get(pickups[best])![heads[best]]))) {
-            bestDistance = d;
-            best = k;
-          }
-        }
-        if (best < 0) continue;
-        const group = groups.get(pickups[best])!;
-        this.give(robot, group[heads[best]++]);
-      }
-    }
+    this.dispatcher.dispatch(idle, tick, this.giveTask);
   }
+
+  private readonly giveTask = (robot: number, task: number): void => this.give(robot, task);
 
   private give(robot: number, task: number): void {
     this.releaseParking(robot);
