@@ -1,13 +1,19 @@
 /**
- * Benchmark: PIBT (policies/pibt) with 1,000 robots on a generated 150 x 80 parcel hall
- * (scenarios/generate.ts, parking for 1,000) under saturated demand, one simulated hour.
- * Reports agent-steps per wall second (one robot advanced by one tick = one agent-step),
- * the real-time factor (simulated seconds per wall second) and the policy's share of wall
- * time, so the engine's own cost is the baseline measured in the same run. Wall time
- * includes building the distance tables of the 780 drops, 38 inducts and used parking
- * spots (breadth-first searches done lazily during the run).
+ * Benchmarks: PIBT (policies/pibt) on generated parcel halls (scenarios/generate.ts) under
+ * saturated demand.
+ *   - `pibt`: 1,000 robots on a 150 x 80 hall (parking for 1,000), one simulated hour.
+ *   - `pibt-10k`: 10,000 robots on a 480 x 250 hall (120,000 cells, 123 inducts, 9,180 drops,
+ *     parking for 10,000), 15 simulated minutes: robots drive out from the parking block on
+ *     the east wall to the inducts on the west wall (about 450 cells) and then spread over
+ *     thousands of different drops, which is what stresses the per-goal distance fields.
+ * Each row reports agent-steps per wall second (an agent-step is one robot over one
+ * simulated tick, whether or not it moved), the real-time factor (simulated seconds per
+ * wall second), deliveries, the policy's share of wall time (the engine's own cost is the
+ * rest, measured in the same run) and the distance work: full tables built
+ * (sim/distance-table.ts) and windowed fields built with the cells they searched
+ * (sim/distance-field.ts). Wall time includes all of it, done lazily during the run.
  *
- * Run directly: `npx tsx bench/pibt.ts [--json] [hours]`.
+ * Run directly: `npx tsx bench/pibt.ts [--json] [--10k] [hours | minutes with --10k]`.
  */
 import { pibt } from '../policies/pibt/index.ts';
 import { generateSortationHall } from '../scenarios/generate.ts';
@@ -17,9 +23,11 @@ import { parseLayout } from '../sim/layout.ts';
 import { makeScenario } from '../test/helpers.ts';
 
 export interface PibtBenchRow {
-  name: 'pibt';
+  name: 'pibt' | 'pibt-10k';
   policy: 'pibt';
   robots: number;
+  hall: string;
+  simulatedMinutes: number;
   simulatedHours: number;
   agentStepsPerSecond: number;
   realTimeFactor: number;
@@ -29,18 +37,26 @@ export interface PibtBenchRow {
   delivered: number;
   collisions: number;
   deadlockEpisodes: number;
+  tableBuilds: number;
+  fieldBuilds: number;
+  fieldCellsSearched: number;
+  /** Resident set size at the end of the run, MB (the process's, so it includes earlier rows). */
+  rssMegabytes: number;
 }
 
-export function benchPibt(hours = 1, robots = 1000): PibtBenchRow {
-  const layoutText = generateSortationHall({ width: 150, height: 80, parking: robots });
-  const scenario = makeScenario({ layout: layoutText, robots, policy: 'pibt', hours, pickupSeconds: 4, dropSeconds: 3 });
+function benchHall(name: PibtBenchRow['name'], width: number, height: number, robots: number, minutes: number): PibtBenchRow {
+  const layoutText = generateSortationHall({ width, height, parking: robots });
+  const scenario = makeScenario({ layout: layoutText, robots, policy: 'pibt', hours: minutes / 60, pickupSeconds: 4, dropSeconds: 3 });
   const layout = parseLayout(layoutText);
-  const record = runReplication({ scenario, layout, distances: new DistanceTables(layout), policy: pibt, policyOptions: pibt.options.parse({}) }, 0);
+  const distances = new DistanceTables(layout);
+  const record = runReplication({ scenario, layout, distances, policy: pibt, policyOptions: pibt.options.parse({}) }, 0);
   return {
-    name: 'pibt',
+    name,
     policy: 'pibt',
     robots,
-    simulatedHours: hours,
+    hall: `${width} x ${height}`,
+    simulatedMinutes: minutes,
+    simulatedHours: Number((minutes / 60).toFixed(4)),
     agentStepsPerSecond: Math.round(record.agentSteps / record.wallSeconds),
     realTimeFactor: Math.round((record.endTick * record.tickSeconds) / record.wallSeconds),
     wallSeconds: Number(record.wallSeconds.toFixed(3)),
@@ -48,20 +64,37 @@ export function benchPibt(hours = 1, robots = 1000): PibtBenchRow {
     delivered: record.delivered,
     collisions: record.collisions,
     deadlockEpisodes: record.metrics.episodes.length,
+    tableBuilds: distances.builds,
+    fieldBuilds: distances.fields.builds,
+    fieldCellsSearched: distances.fields.cellsSearched,
+    rssMegabytes: Math.round(process.memoryUsage().rss / 1e6),
   };
+}
+
+/** 1,000 robots on a 150 x 80 hall. */
+export function benchPibt(hours = 1, robots = 1000): PibtBenchRow {
+  return benchHall('pibt', 150, 80, robots, hours * 60);
+}
+
+/** 10,000 robots on a 480 x 250 hall. */
+export function benchPibt10k(minutes = 15, robots = 10000): PibtBenchRow {
+  return benchHall('pibt-10k', 480, 250, robots, minutes);
 }
 
 if (import.meta.url === `file://${process.argv[1]}`) {
   const args = process.argv.slice(2);
-  const hoursArgument = args.find((a) => !a.startsWith('--'));
-  const row = benchPibt(hoursArgument === undefined ? 1 : Number(hoursArgument));
+  const lengthArgument = args.find((a) => !a.startsWith('--'));
+  const row = args.includes('--10k')
+    ? benchPibt10k(lengthArgument === undefined ? 15 : Number(lengthArgument))
+    : benchPibt(lengthArgument === undefined ? 1 : Number(lengthArgument));
   if (args.includes('--json')) {
     process.stdout.write(`${JSON.stringify(row)}\n`);
   } else {
     process.stdout.write(
-      `pibt, ${row.robots} robots, ${row.simulatedHours} h on a 150 x 80 hall: ${row.agentStepsPerSecond} agent-steps/s, ` +
+      `${row.name}, ${row.robots} robots, ${row.simulatedMinutes} min on a ${row.hall} hall: ${row.agentStepsPerSecond} agent-steps/s, ` +
         `${row.realTimeFactor}x real time (${row.wallSeconds} s wall, policy ${(row.planningShare * 100).toFixed(0)}% of it), ` +
-        `${row.delivered} delivered, ${row.collisions} collisions, ${row.deadlockEpisodes} deadlock episodes\n`,
+        `${row.delivered} delivered, ${row.collisions} collisions, ${row.deadlockEpisodes} deadlock episodes, ` +
+        `${row.tableBuilds} tables, ${row.fieldBuilds} fields (${(row.fieldCellsSearched / 1e6).toFixed(1)} M cells), ${row.rssMegabytes} MB RSS\n`,
     );
   }
 }

@@ -5,7 +5,7 @@
  *
  *   npm run bench                 table on stdout
  *   npm run bench -- --json       one JSON array of rows
- *   npm run bench -- --quick      skip the slow rows (munkres-js at 1000, pibt at 1,000 robots, the replay viewer)
+ *   npm run bench -- --quick      skip the slow rows (munkres-js at 1000, pibt at 1,000 and 10,000 robots, the replay viewer)
  *   npm run bench -- --only NAME  only rows whose name starts with NAME (engine, policy, pibt, replay, assignment)
  */
 import { loadScenarioFile } from '../scenarios/load.ts';
@@ -67,8 +67,11 @@ if (wanted('policy')) {
   }
 }
 if (wanted('pibt') && !quick && policies.some((p) => p.name === 'pibt')) {
-  const { benchPibt } = await import('./pibt.ts');
-  rows.push((await benchPibt()) as unknown as Row);
+  const { benchPibt, benchPibt10k } = await import('./pibt.ts');
+  rows.push(benchPibt() as unknown as Row);
+  log(`pibt 1,000 robots: ${rows[rows.length - 1].realTimeFactor}x real time`);
+  rows.push(benchPibt10k() as unknown as Row);
+  log(`pibt-10k 10,000 robots: ${rows[rows.length - 1].realTimeFactor}x real time`);
 }
 if (wanted('replay') && !quick) {
   const { benchReplay } = await import('./replay.ts');
