@@ -9,5 +9,6 @@ export const pibt: PolicyFactory<PibtOptions> = {
   allowsRecovery: true,
   options: pibtOptions as never,
   optionDocs: pibtOptionDocs,
-  create: (context, options) => new Pibt(context, options),
+  // Parsed again so that callers passing raw options (benchmarks, tests) get the defaults.
+  create: (context, options) => new Pibt(context, pibtOptions.parse(options ?? {})),
 };
