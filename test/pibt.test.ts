@@ -5,7 +5,7 @@ import { Dispatcher, type DispatchOptions } from '../policies/pibt/dispatch.ts';
 import { generateSortationHall } from '../scenarios/generate.ts';
 import { loadScenarioFile } from '../scenarios/load.ts';
 import type { Scenario } from '../sim/model.ts';
-import { DistanceTables } from '../sim/distance-table.ts';
+import { DistanceTables, distanceTable } from '../sim/distance-table.ts';
 import { runReplication, type ReplicationRecord } from '../sim/engine.ts';
 import { InputError } from '../sim/errors.ts';
 import { checkWellFormed, componentLabels, parseLayout } from '../sim/layout.ts';
@@ -281,6 +281,43 @@ describe('pibt dispatch rule on hand-built floors', () => {
       const atA = task(5, 1);
       const atB = task(5, 9);
       expect(run({ queueWeight }, [0], 10)).toEqual([[0, expected === 'A' ? atA : atB]]);
+    }
+  });
+
+  it('with many robots to spare (the bucketed path), every task gets the robot a plain nearest-first reference picks', () => {
+    // Reference written here: tasks in release order, each takes the idle robot with the
+    // smallest grid distance to its pickup (BFS table), ties by lower robot index.
+    const random = seedrandom('dispatch-buckets');
+    const layout = parseLayout(generateSortationHall({ width: 64, height: 33 }));
+    for (let trial = 0; trial < 5; trial++) {
+      const robots = 400;
+      const world = new World(layout, robots);
+      const free = [...layout.floorCells];
+      for (let r = 0; r < robots; r++) {
+        const cell = free.splice(Math.floor(random() * free.length), 1)[0];
+        world.robotCell[r] = cell;
+        world.occupant[cell] = r;
+      }
+      for (let k = 0; k < 300; k++) {
+        const pickup = layout.pickups[Math.floor(random() * layout.pickups.length)];
+        world.addTask(k, pickup, layout.drops[0], -1, 4, 3, 0, TaskState.Open);
+      }
+      const idle = Array.from({ length: robots }, (_, r) => r);
+      const expected: [number, number][] = [];
+      const taken = new Set<number>();
+      for (const task of [...world.openTasks]) {
+        const table = distanceTable(layout, world.taskPickup[task]);
+        let best = -1;
+        for (const r of idle) {
+          if (taken.has(r)) continue;
+          if (best < 0 || table[world.robotCell[r]] < table[world.robotCell[best]]) best = r;
+        }
+        taken.add(best);
+        expected.push([best, task]);
+      }
+      const given: [number, number][] = [];
+      new Dispatcher(world, new DistanceTables(layout), 1, { ageWeight: 0.1, queueWeight: 1, maxStations: 64 }).dispatch(idle, 400, (robot, task) => given.push([robot, task]));
+      expect(given).toEqual(expected);
     }
   });
 

@@ -35,6 +35,9 @@ import type { DistanceTables } from '../../sim/distance-table.ts';
 import { unreachable } from '../../sim/distance-table.ts';
 import { Phase, type World } from '../../sim/world.ts';
 
+/** Above this many (idle robots x open tasks) pairs, tasks choose by sorted buckets instead of scans. */
+const bucketThreshold = 1 << 16;
+
 export interface DispatchOptions {
   /** Cells of cost credited per second a station's oldest open task has waited. */
   ageWeight: number;
@@ -56,6 +59,7 @@ export class Dispatcher {
   private readonly slotTable: Int32Array[] = [];
   private readonly slotCredit: number[] = [];
   private readonly chosen: number[] = [];
+  private readonly claimed: Uint8Array;
 
   constructor(
     private readonly world: World,
@@ -65,6 +69,7 @@ export class Dispatcher {
   ) {
     this.slotOf = new Int32Array(world.layout.cellCount).fill(-1);
     this.queuedTicks = new Float64Array(world.layout.cellCount);
+    this.claimed = new Uint8Array(world.robotCount);
   }
 
   /** Assigns open tasks to the idle robots (in index order) through `give`. */
@@ -76,12 +81,19 @@ export class Dispatcher {
   }
 
   private tasksChoose(idle: number[], give: (robot: number, task: number) => void): void {
-    const world = this.world;
-    const open = world.openTasks;
-    // Decide first, assign after: assigning edits the open list (and saturated demand refills it).
-    const pool = idle.slice();
     const chosen = this.chosen;
     chosen.length = 0;
+    // Decide first, assign after: assigning edits the open list (and saturated demand refills it).
+    if (idle.length * this.world.openTasks.length <= bucketThreshold) this.tasksChooseByScan(idle);
+    else this.tasksChooseByBuckets(idle);
+    for (let i = 0; i < chosen.length; i += 2) give(chosen[i], chosen[i + 1]);
+  }
+
+  /** Each open task, oldest first, scans the remaining idle robots for the nearest. */
+  private tasksChooseByScan(idle: number[]): void {
+    const world = this.world;
+    const open = world.openTasks;
+    const pool = idle.slice();
     for (let i = 0; i < open.length && pool.length > 0; i++) {
       const task = open[i];
       const table = this.distances.to(world.taskPickup[task]);
@@ -95,11 +107,66 @@ export class Dispatcher {
         }
       }
       if (best < 0) continue;
-      chosen.push(pool[best], task);
+      this.chosen.push(pool[best], task);
       pool[best] = pool[pool.length - 1];
       pool.pop();
     }
-    for (let i = 0; i < chosen.length; i += 2) give(chosen[i], chosen[i + 1]);
+  }
+
+  /**
+   * The same choices as the scan (nearest unclaimed robot, ties by lower index) for many
+   * robots and tasks at once, e.g. 10,000 robots leaving parking: per pickup, the idle
+   * robots sorted once by distance with a counting sort (stable, so ties stay in index
+   * order), then each task takes the first unclaimed robot of its pickup's order.
+   * O(pickups x (idle + largest distance) + tasks) instead of O(tasks x idle).
+   */
+  private tasksChooseByBuckets(idle: number[]): void {
+    const world = this.world;
+    const open = world.openTasks;
+    const claimed = this.claimed;
+    for (const r of idle) claimed[r] = 0;
+    const orders = new Map<number, { robots: Int32Array; next: number }>();
+    let left = idle.length;
+    for (let i = 0; i < open.length && left > 0; i++) {
+      const task = open[i];
+      const pickup = world.taskPickup[task];
+      let order = orders.get(pickup);
+      if (!order) {
+        order = { robots: this.byDistance(idle, this.distances.to(pickup)), next: 0 };
+        orders.set(pickup, order);
+      }
+      while (order.next < order.robots.length && claimed[order.robots[order.next]]) order.next++;
+      if (order.next >= order.robots.length) continue;
+      const robot = order.robots[order.next++];
+      claimed[robot] = 1;
+      left--;
+      this.chosen.push(robot, task);
+    }
+  }
+
+  /** Idle robots that reach `table`'s target, by distance, ties in the order of `idle`. */
+  private byDistance(idle: number[], table: Int32Array): Int32Array {
+    const cells = this.world.robotCell;
+    let largest = -1;
+    let reachable = 0;
+    for (const r of idle) {
+      const d = table[cells[r]];
+      if (d >= unreachable) continue;
+      reachable++;
+      if (d > largest) largest = d;
+    }
+    const start = new Int32Array(largest + 2);
+    for (const r of idle) {
+      const d = table[cells[r]];
+      if (d < unreachable) start[d + 1]++;
+    }
+    for (let d = 1; d <= largest + 1; d++) start[d] += start[d - 1];
+    const sorted = new Int32Array(reachable);
+    for (const r of idle) {
+      const d = table[cells[r]];
+      if (d < unreachable) sorted[start[d]++] = r;
+    }
+    return sorted;
   }
 
   private robotsChoose(idle: number[], tick: number, give: (robot: number, task: number) => void): void {
