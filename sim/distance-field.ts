@@ -99,16 +99,24 @@ export class DistanceField {
   }
 
   /**
-   * For a cell whose neighbours are covered (coversAround): bit d (d = 0..3: north, east,
-   * south, west, the order of Layout.neighbors) is set when the neighbour that way is one
-   * step farther from the goal, clear when it is one step closer. Bits of blocked
-   * neighbours mean nothing. One window lookup for all four, for the planner's inner loop.
+   * How the neighbours of `cell` rank, in one window lookup for the planner's inner loop:
+   * bit d (d = 0..3: north, east, south, west, the order of Layout.neighbors) set when the
+   * neighbour that way is one step farther from the goal, clear when it is one step closer
+   * (bits of blocked neighbours mean nothing); -1 when the cell does not reach the goal; -2
+   * when the window does not cover the cell and its neighbours (ask DistanceFields.to again).
    */
-  fartherAround(cell: number): number {
+  rankAround(cell: number): number {
+    const x = this.cellX[cell] - this.x0;
+    const y = this.cellY[cell] - this.y0;
+    const width = this.width;
+    if (x < 0 || y < 0 || x >= width || y >= this.height) return -2;
+    if ((x === 0 && this.x0 !== 0) || (y === 0 && this.y0 !== 0)) return -2;
+    if ((x === width - 1 && this.x0 + width !== this.floorWidth) || (y === this.height - 1 && this.y0 + this.height !== this.floorHeight)) return -2;
     const values = this.values;
-    const pw = this.width + 2;
-    const i = this.index(cell);
+    const pw = width + 2;
+    const i = (y + 1) * pw + x + 1;
     const here = values[i];
+    if ((here & reachedBit) === 0) return -1;
     return (
       (((values[i - pw] - here) & 3) === 1 ? 1 : 0) |
       (((values[i + 1] - here) & 3) === 1 ? 2 : 0) |

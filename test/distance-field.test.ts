@@ -32,15 +32,21 @@ function disagreement(layout: Layout, field: DistanceField, table: Int32Array): 
     if (!field.covers(c)) continue;
     checked++;
     if (field.reaches(c) !== table[c] < unreachable) return fail(`reaches(${c})`);
-    if (table[c] >= unreachable) continue;
+    if (table[c] >= unreachable) {
+      if (field.coversAround(c) && field.rankAround(c) !== -1) return fail(`rankAround(${c}) of a cell cut off from the goal`);
+      continue;
+    }
     if (field.mod4(c) !== (table[c] & 3)) return fail(`mod4(${c}) = ${field.mod4(c)}, table ${table[c]}`);
-    if (!field.coversAround(c)) continue;
-    const farther = field.fartherAround(c);
+    if (!field.coversAround(c)) {
+      if (field.rankAround(c) !== -2) return fail(`rankAround(${c}) on the window's edge`);
+      continue;
+    }
+    const farther = field.rankAround(c);
     for (let d = 0; d < 4; d++) {
       const n = layout.neighbors[c * 4 + d];
       if (n < 0) continue;
       if (field.step(c, n) !== table[n] - table[c]) return fail(`step(${c}, ${n})`);
-      if (((farther >> d) & 1) !== (table[n] > table[c] ? 1 : 0)) return fail(`fartherAround(${c}) bit ${d}`);
+      if (((farther >> d) & 1) !== (table[n] > table[c] ? 1 : 0)) return fail(`rankAround(${c}) bit ${d}`);
     }
   }
   return { checked, first: null };

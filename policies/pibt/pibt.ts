@@ -440,10 +440,13 @@ export class Pibt implements Policy {
     this.cursor[r] = 0;
     const cell = world.robotCell[r];
     const goal = this.goal[r];
-    let field = this.goalField[r];
-    if (goal >= 0 && (field === null || !field.coversAround(cell))) field = this.goalField[r] = this.context.distances.fields.to(goal, cell);
     // Bit d: the neighbour in direction d is farther from the goal; -1: no goal to rank by.
-    const farther = field !== null && field.reaches(cell) ? field.fartherAround(cell) : -1;
+    let farther = -1;
+    if (goal >= 0) {
+      const field = this.goalField[r];
+      farther = field === null ? -2 : field.rankAround(cell);
+      if (farther === -2) farther = (this.goalField[r] = this.context.distances.fields.to(goal, cell)).rankAround(cell);
+    }
     const occupant = world.occupant;
     const candidates = this.candidates;
     const base = r * slots;
