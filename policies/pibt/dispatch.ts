@@ -27,9 +27,12 @@
  *
  * Candidates: the open list is in release order; it is scanned from the oldest task until
  * `maxStations` distinct pickups are found and at least as many tasks as idle robots, so a
- * pass costs O(scanned tasks + idle robots x maxStations) and never O(open tasks x robots)
- * under a deep backlog. A station whose collected tasks run out in a pass drops out of that
- * pass only.
+ * pass costs O(scanned tasks + robots + idle robots x maxStations) (one pass over the robots
+ * sums the queued handling) and never O(open tasks x robots) under a deep backlog. A station
+ * whose collected tasks run out in a pass drops out of that pass only. With few open tasks
+ * and many idle robots (10,000 robots leaving parking) the tasks choose through per-pickup
+ * orders of the idle robots by distance (a counting sort), O(pickups x (robots + largest
+ * distance)) instead of O(tasks x robots).
  */
 import type { DistanceTables } from '../../sim/distance-table.ts';
 import { unreachable } from '../../sim/distance-table.ts';
