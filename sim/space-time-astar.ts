@@ -1,33 +1,56 @@
 /**
- * Space-time A* for one robot against reserved paths (Silver 2005, "Cooperative
- * Pathfinding"; the low level of prioritized planning, Erdmann & Lozano-Perez 1987).
- * States are (cell, tick); actions are wait or a move to a 4-neighbour; a state is
- * admissible when the reservation table leaves the cell free at that tick and the move
- * does not swap with another robot. The heuristic is the exact grid distance to the goal
- * (a BFS table), which is consistent, so the first goal state popped is the earliest
- * arrival that satisfies the goal condition.
+ * Earliest-arrival search for one robot against reserved paths: safe-interval path planning
+ * (Phillips & Likhachev, "SIPP: Safe Interval Path Planning for Dynamic Environments", ICRA
+ * 2011) over the reservation table's per-cell intervals, as the low level of prioritized
+ * planning (Erdmann & Lozano-Perez 1987; Silver 2005, "Cooperative Pathfinding").
+ *
+ * A safe interval of a cell is a maximal run of ticks at which no other robot holds it. A
+ * search state is (cell, safe interval) with the earliest tick the robot can be there; it
+ * may wait anywhere inside the interval, so waiting costs no expansions. A move from
+ * (c, [a, b]) reached at t to a neighbour's interval [a', b'] arrives at the earliest t' in
+ * [max(t + 1, a'), min(b + 1, b')] whose step does not swap cells with another robot (vertex
+ * and swap collisions as in Stern et al., SoCS 2019). With unit moves and waits this finds
+ * the same earliest arrival as a space-time A* over (cell, tick) (the paper's optimality
+ * result); among equal arrivals it may choose a different path. A state reached later at
+ * an earlier tick is re-opened, so the time-dependent heuristic below stays exact.
  *
  * Goal conditions: `holdTicks >= 0` means the robot must be able to stay on the goal for
  * that many ticks after arriving (handling at a station); `restForever` means nobody else
- * may use the goal cell at any later tick (the end of a token-passing path).
+ * may use the goal cell at any later tick (the end of a token-passing path). The goal cell
+ * is terminal: entering it starts handling (or the rest), so a path enters it only when the
+ * condition holds and never passes through it earlier. The condition turns the goal's safe
+ * intervals into arrival windows ([a, b - hold], or the last, endless interval for a rest).
  *
- * The heuristic also knows when the goal itself becomes available: before a search, one
- * backward pass over the goal cell's reservations gives, for every tick k, the earliest
- * tick >= k at which the goal condition holds; h(cell, t) = ready[t + dist(cell)] - t. It
- * is admissible and consistent (ready is non-decreasing), and it stops the search from
- * flooding space-time while a busy station is still taken.
+ * Heuristic: h(cell, t) = ready(t + dist(cell)) - t, where dist is the exact grid distance (a
+ * BFS table) and ready(k) the earliest tick >= k inside an arrival window: the goal-ready
+ * heuristic, admissible and consistent because ready is non-decreasing, and it stops the
+ * search from flooding while a busy station is still taken.
  *
- * Before searching, a breadth-first pass checks that the goal can be reached at all around
- * the robots that rest for good (a rest that began before the start tick never ends on its
- * own): on a crowded floor most failed searches are of this kind, and the pass costs
- * O(cells) where the space-time search would spend its whole expansion budget.
+ * Fail-fast: a search first checks that the goal can be reached at all around the robots
+ * that rest for good (a rest that began before the start tick never ends on its own). On
+ * crowded floors most failed searches are of that kind, and the check costs far less than a
+ * search spending its expansion budget. It labels the connected parts of the floor without
+ * those resting robots' cells (one breadth-first pass, O(cells)) and keeps the labels while
+ * the set of such rests stays the same (checked in O(robots), or O(1) when the table's rest
+ * revision and the tick are unchanged). When the labels are stale the check is lazy: it runs
+ * only once the search has spent `reachabilityAfter` expansions, since a search that
+ * succeeds quickly needs no proof that it can. The check only ends searches that could not
+ * succeed, so it never changes a result.
  *
- * Memory is reused across searches (typed arrays sized once, a stamp per (tick mod
- * horizon, cell) for the closed set). Cost is bounded by `maxExpansions`; a search that
- * exceeds it or runs past the reservation horizon fails and returns null.
+ * Memory follows what a search touches: the safe intervals of a cell are read from the
+ * table the first time the search reaches it (a stamp per cell marks them current) into a
+ * pool that grows as needed; nothing is sized horizon x cells. Cost is bounded by
+ * `maxExpansions`; a search that exceeds it, or would end later than `horizon - 2` ticks
+ * after its start (less the hold), fails and returns null.
+ *
+ * Headings (later): a state would be (cell, heading, safe interval), with the interval's
+ * earliest tick kept per heading (`best` indexed interval x headings) and a turn successor
+ * (same cell and interval, t + turn ticks); the intervals stay per cell, so `generate` and
+ * the table need no change.
  */
 import type { Layout } from './layout.ts';
-import type { ReservationTable } from './reservation-table.ts';
+import { unreachable } from './distance-table.ts';
+import { foreverTick, type ReservationTable } from './reservation-table.ts';
 
 export interface SearchRequest {
   robot: number;
@@ -41,23 +64,52 @@ export interface SearchRequest {
   restForever: boolean;
 }
 
+const never = foreverTick;
+
 export class SpaceTimeAStar {
-  private capacity: number;
-  private nodeCell: Int32Array;
-  private nodeTick: Int32Array;
-  private nodeParent: Int32Array;
-  private heapNode: Int32Array;
-  private heapKey: Float64Array;
+  // Search nodes: a (cell, interval) reached at a tick, with its parent.
+  private nodeCell = new Int32Array(1024);
+  private nodeInterval = new Int32Array(1024);
+  private nodeTick = new Int32Array(1024);
+  private nodeParent = new Int32Array(1024);
+  private nodes = 0;
+  private heapNode = new Int32Array(1024);
+  private heapKey = new Float64Array(1024);
   private heapSize = 0;
-  private closed: Int32Array;
-  private ready = new Int32Array(256);
-  private readonly reachStamp: Int32Array;
-  private readonly reachQueue: Int32Array;
-  private reachId = 0;
-  /** Searches that failed the reachability pass without expanding a state. */
-  unreachableSkips = 0;
-  private closedHorizon = 0;
+  // Safe intervals of the cells touched by this search: [lo, hi] and the earliest tick reached.
+  private intervalLo = new Int32Array(1024);
+  private intervalHi = new Int32Array(1024);
+  private intervalBest = new Int32Array(1024);
+  private intervalsUsed = 0;
+  private readonly cellStamp: Int32Array;
+  private readonly cellFirst: Int32Array;
+  private readonly cellCount: Int32Array;
+  // Arrival windows at the goal, in time order.
+  private windowLo = new Int32Array(16);
+  private windowHi = new Int32Array(16);
+  private windows = 0;
+  // Reachability labels: component per floor cell without the blocking rests (-1: blocked),
+  // valid for the rest cell per robot in `labelRest` (-1: none blocking).
+  private readonly label: Int32Array;
+  private readonly labelQueue: Int32Array;
+  private readonly labelRest: Int32Array;
+  private labelsBuilt = false;
+  private labelRestRevision = -1;
+  private labelTick = -1;
+  private labelCheckedExcept = -1;
+  private labelBuiltRevision = -1;
+  private labelBuiltTick = -1;
   private searchId = 0;
+  // The current request, kept in fields so the hot loop needs no closures.
+  private robot = 0;
+  private startTick = 0;
+  private goal = 0;
+  private lastTick = 0;
+  private heuristic: Int32Array = new Int32Array(0);
+  /** Searches that the reachability pass ended. */
+  unreachableSkips = 0;
+  /** Breadth-first labelling passes run for the reachability check. */
+  reachabilityPasses = 0;
   expansions = 0;
   searches = 0;
 
@@ -65,43 +117,16 @@ export class SpaceTimeAStar {
     private readonly layout: Layout,
     private readonly table: ReservationTable,
     readonly maxExpansions = 200_000,
+    /** Expansions after which a search first checks that its goal is reachable at all. */
+    readonly reachabilityAfter = 16,
   ) {
-    this.capacity = 1024;
-    this.nodeCell = new Int32Array(this.capacity);
-    this.nodeTick = new Int32Array(this.capacity);
-    this.nodeParent = new Int32Array(this.capacity);
-    this.heapNode = new Int32Array(this.capacity);
-    this.heapKey = new Float64Array(this.capacity);
-    this.closed = new Int32Array(0);
-    this.reachStamp = new Int32Array(layout.cellCount);
-    this.reachQueue = new Int32Array(layout.cellCount);
-  }
-
-  /** True when `goal` is reachable from `start` without entering a cell another robot rests on since before `tick`. */
-  private reachable(start: number, goal: number, tick: number, robot: number): boolean {
-    const { table } = this;
-    const neighbors = this.layout.neighbors;
-    const stamp = this.reachStamp;
-    const queue = this.reachQueue;
-    const id = ++this.reachId;
-    let head = 0;
-    let tail = 0;
-    queue[tail++] = start;
-    stamp[start] = id;
-    while (head < tail) {
-      const cell = queue[head++];
-      if (cell === goal) return true;
-      const base = cell * 4;
-      for (let d = 0; d < 4; d++) {
-        const n = neighbors[base + d];
-        if (n < 0 || stamp[n] === id) continue;
-        stamp[n] = id;
-        const rester = table.endRobot[n];
-        if (rester >= 0 && rester !== robot && table.endFrom[n] <= tick) continue;
-        queue[tail++] = n;
-      }
-    }
-    return false;
+    const cells = layout.cellCount;
+    this.cellStamp = new Int32Array(cells);
+    this.cellFirst = new Int32Array(cells);
+    this.cellCount = new Int32Array(cells);
+    this.label = new Int32Array(cells);
+    this.labelQueue = new Int32Array(cells);
+    this.labelRest = new Int32Array(table.robots);
   }
 
   /**
@@ -110,137 +135,366 @@ export class SpaceTimeAStar {
    * (the hold is not included). Null when no path is found within the limits.
    */
   search(request: SearchRequest): Int32Array | null {
-    const { layout, table } = this;
-    const cells = layout.cellCount;
-    const horizon = table.horizon;
-    if (this.closedHorizon !== horizon) {
-      this.closed = new Int32Array(horizon * cells);
-      this.closedHorizon = horizon;
-      this.searchId = 0;
-    }
-    const mask = horizon - 1;
-    const id = ++this.searchId;
+    const table = this.table;
     this.searches++;
     const { robot, start, startTick, goal, heuristic, holdTicks, restForever } = request;
-    if (heuristic[start] >= 0x3fffffff) return null;
+    if (heuristic[start] >= unreachable) return null;
     // A goal another robot rests on forever can never satisfy a rest; fail without searching.
     if (restForever && table.endRobot[goal] >= 0 && table.endRobot[goal] !== robot) return null;
-    // Paths must stay inside the reservation ring; leave room for the hold at the goal.
-    const lastTick = startTick + horizon - 2 - (restForever ? 0 : holdTicks);
-    const neighbors = layout.neighbors;
-    const closed = this.closed;
-    this.heapSize = 0;
-    // ready[k - startTick] = earliest tick >= k at which the goal condition holds, for k below
-    // startTick + span; past the goal's last reservation the goal is ready at once.
-    const lastReserved = table.lastTickOfCell[goal];
-    const span = Math.max(0, Math.min(horizon, lastReserved - startTick + 2));
-    if (this.ready.length < span + 1) this.ready = new Int32Array(2 * span + 2);
-    const ready = this.ready;
-    if (restForever) {
-      let lastOther = -1;
-      for (let t = lastReserved; t >= startTick; t--) {
-        if (!table.isFree(goal, t, robot)) {
-          lastOther = t;
-          break;
-        }
-      }
-      for (let k = 0; k < span; k++) ready[k] = Math.max(startTick + k, lastOther + 1);
-    } else {
-      // Walking back, `run` counts consecutive free ticks from k on (ticks past the span are free).
-      let run = holdTicks + 1;
-      let next = startTick + span;
-      for (let k = span - 1; k >= 0; k--) {
-        const t = startTick + k;
-        run = table.isFree(goal, t, robot) ? run + 1 : 0;
-        if (run >= holdTicks + 1) next = t;
-        ready[k] = next;
-      }
+    if (start === goal) {
+      const holds = restForever ? table.isFreeFrom(goal, startTick, robot) : table.isFreeDuring(goal, startTick, startTick + holdTicks, robot);
+      return holds ? Int32Array.of(start) : null;
     }
-    const heuristicAt = (cell: number, tick: number): number => {
-      const distance = heuristic[cell];
-      const k = tick + distance - startTick;
-      return k < span ? ready[k] - tick : distance;
-    };
-    let nodes = 0;
-    const push = (cell: number, tick: number, parent: number): void => {
-      if (nodes >= this.capacity) this.grow();
-      this.nodeCell[nodes] = cell;
-      this.nodeTick[nodes] = tick;
-      this.nodeParent[nodes] = parent;
-      const g = tick - startTick;
-      // f first, then deeper nodes first among equal f (fewer re-expansions).
-      this.heapPush(nodes, (g + heuristicAt(cell, tick)) * 1048576 - g);
-      nodes++;
-    };
-    // The goal cell is terminal: entering it starts handling (or the rest), so a path may
-    // enter it only when the goal condition holds, and never passes through it earlier.
-    const goalHolds = (tick: number): boolean =>
-      restForever ? table.isFreeFrom(goal, tick, robot) : table.isFreeDuring(goal, tick, tick + holdTicks, robot);
-    if (start === goal) return goalHolds(startTick) ? Int32Array.of(start) : null;
-    if (!this.reachable(start, goal, startTick, robot)) {
+    this.robot = robot;
+    this.startTick = startTick;
+    this.goal = goal;
+    this.heuristic = heuristic;
+    // Paths stay within the horizon; leave room for the hold at the goal.
+    this.lastTick = startTick + table.horizon - 2 - (restForever ? 0 : holdTicks);
+    if (++this.searchId === 0x7fffffff) {
+      this.cellStamp.fill(0);
+      this.searchId = 1;
+    }
+    this.nodes = 0;
+    this.heapSize = 0;
+    this.intervalsUsed = 0;
+    if (!this.goalWindows(goal, startTick + 1, holdTicks, restForever)) return null;
+    // With usable labels the reachability check is free: do it now. Otherwise, or when they
+    // cannot prove it, (re)label once the search drags on.
+    if (this.labelsCurrent(startTick, start) && !this.reachable(start, goal)) {
       this.unreachableSkips++;
       return null;
     }
-    push(start, startTick, -1);
-    closed[(startTick & mask) * cells + start] = id;
+
+    // The start state: the robot stands on `start` at startTick whatever the table says (it
+    // is there), and may stay while the cell stays free.
+    const first = this.touch(start);
+    let startInterval = first;
+    if (this.cellCount[start] === 0 || this.intervalLo[first] !== startTick + 1) {
+      // Not free at startTick + 1: the start interval is the single tick startTick.
+      startInterval = this.prependInterval(start, startTick, startTick);
+    } else {
+      this.intervalLo[first] = startTick;
+    }
+    this.intervalBest[startInterval] = startTick;
+    this.push(start, startInterval, startTick, -1);
+
+    const neighbors = this.layout.neighbors;
     let expanded = 0;
+    let checked = false;
+    // A search on an open floor expands about as many states as its distance.
+    const lazyAfter = this.reachabilityAfter + heuristic[start];
     while (this.heapSize > 0) {
       const node = this.heapPop();
       const cell = this.nodeCell[node];
       const tick = this.nodeTick[node];
       if (cell === goal) {
         this.expansions += expanded;
-        return this.trace(node, startTick);
+        return this.trace(node);
       }
+      const interval = this.nodeInterval[node];
+      // A later copy of a state already reached earlier: nothing new to expand.
+      if (tick > this.intervalBest[interval]) continue;
       if (++expanded > this.maxExpansions) break;
-      const next = tick + 1;
-      if (next > lastTick) continue;
-      const layer = (next & mask) * cells;
-      // Wait in place.
-      if (closed[layer + cell] !== id && table.isFree(cell, next, robot)) {
-        closed[layer + cell] = id;
-        push(cell, next, node);
+      if (!checked && expanded > lazyAfter) {
+        checked = true;
+        // Labels built for this very table and tick are as precise as they get.
+        if (this.labelBuiltRevision !== table.restRevision || this.labelBuiltTick !== startTick) this.buildLabels(startTick);
+        if (this.labelsCurrent(startTick, start) && !this.reachable(start, goal)) {
+          this.unreachableSkips++;
+          break;
+        }
       }
+      const leaveBy = this.intervalHi[interval] + 1;
       const base = cell * 4;
       for (let d = 0; d < 4; d++) {
         const n = neighbors[base + d];
-        if (n < 0 || closed[layer + n] === id) continue;
-        if (heuristic[n] >= 0x3fffffff) continue;
-        if (!table.isFree(n, next, robot) || table.swaps(cell, n, tick, robot)) continue;
-        if (n === goal && !goalHolds(next)) continue;
-        closed[layer + n] = id;
-        push(n, next, node);
+        if (n < 0 || heuristic[n] >= unreachable) continue;
+        this.generate(node, cell, tick, leaveBy, n);
       }
     }
     this.expansions += expanded;
     return null;
   }
 
-  private trace(node: number, startTick: number): Int32Array {
-    const length = this.nodeTick[node] - startTick + 1;
-    const path = new Int32Array(length);
-    let i = length - 1;
-    let n = node;
-    while (n >= 0) {
-      path[i--] = this.nodeCell[n];
-      n = this.nodeParent[n];
+  /**
+   * Successors of `node` (at `cell` from `tick`, which it must leave by `leaveBy`) in the safe
+   * intervals of neighbour `n`, or in the goal's arrival windows when n is the goal.
+   */
+  private generate(node: number, cell: number, tick: number, leaveBy: number, n: number): void {
+    const isGoal = n === this.goal;
+    let lo: Int32Array;
+    let hi: Int32Array;
+    let first: number;
+    let count: number;
+    if (isGoal) {
+      lo = this.windowLo;
+      hi = this.windowHi;
+      first = 0;
+      count = this.windows;
+    } else {
+      first = this.touch(n);
+      count = this.cellCount[n];
+      lo = this.intervalLo;
+      hi = this.intervalHi;
+    }
+    const latest = Math.min(leaveBy, this.lastTick);
+    for (let i = first; i < first + count; i++) {
+      if (lo[i] > latest) break;
+      if (hi[i] <= tick) continue;
+      let arrival = Math.max(tick + 1, lo[i]);
+      const end = Math.min(latest, hi[i]);
+      // A swap needs another robot on n at arrival - 1, so only an arrival at the very start
+      // of the interval can be one; one tick later n was already free.
+      if (arrival === lo[i] && this.table.swaps(cell, n, arrival - 1, this.robot)) arrival++;
+      if (arrival > end) continue;
+      if (isGoal) {
+        this.push(n, -1, arrival, node);
+        // Later windows only arrive later.
+        return;
+      }
+      if (arrival >= this.intervalBest[i]) continue;
+      this.intervalBest[i] = arrival;
+      this.push(n, i, arrival, node);
+    }
+  }
+
+  /** Arrival windows at the goal from tick `from` on; false when there is none. */
+  private goalWindows(goal: number, from: number, holdTicks: number, restForever: boolean): boolean {
+    const table = this.table;
+    const capacity = table.listLength[goal] + 1;
+    if (this.windowLo.length < capacity) {
+      this.windowLo = new Int32Array(2 * capacity);
+      this.windowHi = new Int32Array(2 * capacity);
+    }
+    const count = table.safeIntervals(goal, from, this.robot, this.windowLo, this.windowHi, 0);
+    let windows = 0;
+    for (let i = 0; i < count; i++) {
+      const lo = this.windowLo[i];
+      const hi = this.windowHi[i];
+      if (restForever) {
+        if (hi !== never) continue;
+      } else if (hi !== never) {
+        if (hi - holdTicks < lo) continue;
+        this.windowHi[windows] = hi - holdTicks;
+        this.windowLo[windows++] = lo;
+        continue;
+      }
+      this.windowLo[windows] = lo;
+      this.windowHi[windows++] = never;
+    }
+    this.windows = windows;
+    return windows > 0;
+  }
+
+  /** Earliest tick >= k inside an arrival window, or `never`. */
+  private ready(k: number): number {
+    const lo = this.windowLo;
+    const hi = this.windowHi;
+    let a = 0;
+    let b = this.windows;
+    while (a < b) {
+      const m = (a + b) >> 1;
+      if (hi[m] < k) a = m + 1;
+      else b = m;
+    }
+    return a < this.windows ? Math.max(k, lo[a]) : never;
+  }
+
+  /** Index of the first safe interval of `cell` for this search, reading them from the table on first touch. */
+  private touch(cell: number): number {
+    if (this.cellStamp[cell] === this.searchId) return this.cellFirst[cell];
+    const table = this.table;
+    const needed = this.intervalsUsed + table.listLength[cell] + 2;
+    if (needed > this.intervalLo.length) this.growIntervals(needed);
+    const at = this.intervalsUsed;
+    const count = table.safeIntervals(cell, this.startTick + 1, this.robot, this.intervalLo, this.intervalHi, at);
+    this.intervalBest.fill(never, at, at + count);
+    this.intervalsUsed += count;
+    this.cellStamp[cell] = this.searchId;
+    this.cellFirst[cell] = at;
+    this.cellCount[cell] = count;
+    return at;
+  }
+
+  /** Adds [lo, hi] before the intervals of `cell` (the start cell's single-tick interval). */
+  private prependInterval(cell: number, lo: number, hi: number): number {
+    const at = this.cellFirst[cell];
+    const count = this.cellCount[cell];
+    if (this.intervalsUsed + 1 > this.intervalLo.length) this.growIntervals(this.intervalsUsed + 1);
+    // The start cell is the first touched, so its intervals are the last in the pool.
+    this.intervalLo.copyWithin(at + 1, at, at + count);
+    this.intervalHi.copyWithin(at + 1, at, at + count);
+    this.intervalBest.copyWithin(at + 1, at, at + count);
+    this.intervalLo[at] = lo;
+    this.intervalHi[at] = hi;
+    this.intervalBest[at] = never;
+    this.cellCount[cell] = count + 1;
+    this.intervalsUsed++;
+    return at;
+  }
+
+  private push(cell: number, interval: number, tick: number, parent: number): void {
+    if (this.nodes === this.nodeCell.length) this.growNodes();
+    const node = this.nodes++;
+    this.nodeCell[node] = cell;
+    this.nodeInterval[node] = interval;
+    this.nodeTick[node] = tick;
+    this.nodeParent[node] = parent;
+    const distance = this.heuristic[cell];
+    const arrival = this.ready(tick + distance);
+    if (arrival > this.lastTick) return; // the goal cannot be reached in time from here
+    const g = tick - this.startTick;
+    // f = g + h = arrival - startTick; among equal f, deeper nodes first (fewer expansions).
+    this.heapPush(node, (arrival - this.startTick) * 1048576 - g);
+  }
+
+  /** The cell robot r rests on since before `tick` (blocking everyone else), or -1. */
+  private blockingRest(robot: number, tick: number): number {
+    const table = this.table;
+    const path = table.paths[robot];
+    if (!path) return -1;
+    const cell = path[path.length - 1];
+    return table.endRobot[cell] === robot && table.endFrom[cell] <= tick ? cell : -1;
+  }
+
+  /**
+   * True when the labels can prove unreachability for this search: every cell they treat as
+   * blocked is still blocked at `tick` for the searching robot (a robot other than it rests
+   * there since before `tick`), except the robot's own start, where it stands. Blocking
+   * fewer cells than the truth only joins parts of the floor, so "different parts" stays a
+   * proof; the labels just prove less until they are rebuilt.
+   */
+  private labelsCurrent(tick: number, start: number): boolean {
+    if (!this.labelsBuilt) return false;
+    const table = this.table;
+    const self = this.robot;
+    const own = this.labelRest[self];
+    if (own >= 0 && own !== start) return false;
+    if (table.restRevision === this.labelRestRevision && tick === this.labelTick) {
+      // Same table as at the last check, which left out its own robot's entry.
+      const other = this.labelCheckedExcept;
+      return other === self || other < 0 || this.stillBlocking(other, tick);
+    }
+    for (let r = 0; r < table.robots; r++) if (r !== self && !this.stillBlocking(r, tick)) return false;
+    this.labelRestRevision = table.restRevision;
+    this.labelTick = tick;
+    this.labelCheckedExcept = self;
+    return true;
+  }
+
+  /** True when robot r's cell in the labels (if any) is still its blocking rest at `tick`. */
+  private stillBlocking(robot: number, tick: number): boolean {
+    const cell = this.labelRest[robot];
+    return cell < 0 || cell === this.blockingRest(robot, tick);
+  }
+
+  /** Labels the connected parts of the floor without the cells of robots resting since before `tick`. */
+  private buildLabels(tick: number): void {
+    const table = this.table;
+    const label = this.label;
+    const passable = this.layout.passable;
+    const neighbors = this.layout.neighbors;
+    const queue = this.labelQueue;
+    this.reachabilityPasses++;
+    label.fill(-1);
+    const unlabelled = -2;
+    for (let c = 0; c < label.length; c++) if (passable[c]) label[c] = unlabelled;
+    for (let r = 0; r < table.robots; r++) {
+      // The searching robot's own rest never blocks it.
+      const cell = r === this.robot ? -1 : this.blockingRest(r, tick);
+      this.labelRest[r] = cell;
+      if (cell >= 0) label[cell] = -1;
+    }
+    let parts = 0;
+    for (let c = 0; c < label.length; c++) {
+      if (label[c] !== unlabelled) continue;
+      let head = 0;
+      let tail = 0;
+      queue[tail++] = c;
+      label[c] = parts;
+      while (head < tail) {
+        const cell = queue[head++];
+        const base = cell * 4;
+        for (let d = 0; d < 4; d++) {
+          const n = neighbors[base + d];
+          if (n >= 0 && label[n] === unlabelled) {
+            label[n] = parts;
+            queue[tail++] = n;
+          }
+        }
+      }
+      parts++;
+    }
+    this.labelsBuilt = true;
+    this.labelBuiltRevision = table.restRevision;
+    this.labelBuiltTick = tick;
+    this.labelRestRevision = table.restRevision;
+    this.labelTick = tick;
+    this.labelCheckedExcept = -1;
+  }
+
+  /**
+   * False when the labels prove that `goal` cannot be reached from `start` without entering
+   * a cell another robot rests on since before the start tick. The start cell itself may be
+   * labelled blocked (the robot's own earlier rest): then its neighbours decide.
+   */
+  private reachable(start: number, goal: number): boolean {
+    const label = this.label;
+    const target = label[goal];
+    if (target < 0) return this.labelRest[this.robot] === goal;
+    if (label[start] >= 0) return label[start] === target;
+    const neighbors = this.layout.neighbors;
+    for (let d = 0; d < 4; d++) {
+      const n = neighbors[start * 4 + d];
+      if (n >= 0 && label[n] === target) return true;
+    }
+    return false;
+  }
+
+  /** The path to `node` as cells at consecutive ticks from startTick (waits filled in). */
+  private trace(node: number): Int32Array {
+    const startTick = this.startTick;
+    const path = new Int32Array(this.nodeTick[node] - startTick + 1);
+    let end = path.length;
+    for (let n = node; n >= 0; n = this.nodeParent[n]) {
+      const from = this.nodeTick[n] - startTick;
+      path.fill(this.nodeCell[n], from, end);
+      end = from;
     }
     return path;
   }
 
-  private grow(): void {
-    const capacity = this.capacity * 2;
-    const resize = <T extends Int32Array | Float64Array>(array: T, make: (n: number) => T): T => {
-      const next = make(capacity);
-      next.set(array);
-      return next;
-    };
-    this.nodeCell = resize(this.nodeCell, (n) => new Int32Array(n));
-    this.nodeTick = resize(this.nodeTick, (n) => new Int32Array(n));
-    this.nodeParent = resize(this.nodeParent, (n) => new Int32Array(n));
-    this.heapNode = resize(this.heapNode, (n) => new Int32Array(n));
-    this.heapKey = resize(this.heapKey, (n) => new Float64Array(n));
-    this.capacity = capacity;
+  /** Bytes held in typed arrays (for benchmarks). */
+  memoryBytes(): number {
+    const arrays = [
+      this.nodeCell, this.nodeInterval, this.nodeTick, this.nodeParent, this.heapNode, this.heapKey,
+      this.intervalLo, this.intervalHi, this.intervalBest, this.cellStamp, this.cellFirst, this.cellCount,
+      this.windowLo, this.windowHi, this.label, this.labelQueue, this.labelRest,
+    ];
+    let bytes = 0;
+    for (const a of arrays) bytes += a.byteLength;
+    return bytes;
+  }
+
+  private growIntervals(needed: number): void {
+    let capacity = this.intervalLo.length;
+    while (capacity < needed) capacity *= 2;
+    this.intervalLo = resized(this.intervalLo, capacity);
+    this.intervalHi = resized(this.intervalHi, capacity);
+    this.intervalBest = resized(this.intervalBest, capacity);
+  }
+
+  private growNodes(): void {
+    const capacity = 2 * this.nodeCell.length;
+    this.nodeCell = resized(this.nodeCell, capacity);
+    this.nodeInterval = resized(this.nodeInterval, capacity);
+    this.nodeTick = resized(this.nodeTick, capacity);
+    this.nodeParent = resized(this.nodeParent, capacity);
+    this.heapNode = resized(this.heapNode, capacity);
+    const keys = new Float64Array(capacity);
+    keys.set(this.heapKey);
+    this.heapKey = keys;
   }
 
   private heapPush(node: number, key: number): void {
@@ -282,4 +536,10 @@ export class SpaceTimeAStar {
     }
     return top;
   }
+}
+
+function resized(array: Int32Array, capacity: number): Int32Array<ArrayBuffer> {
+  const next = new Int32Array(capacity);
+  next.set(array);
+  return next;
 }

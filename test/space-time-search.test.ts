@@ -1,0 +1,308 @@
+import { describe, expect, it } from 'vitest';
+import fc from 'fast-check';
+import seedrandom from 'seedrandom';
+import { buildLayout, CellKind } from '../sim/layout.ts';
+import { distanceTable } from '../sim/distance-table.ts';
+import { ReservationTable } from '../sim/reservation-table.ts';
+import { SpaceTimeAStar } from '../sim/space-time-astar.ts';
+
+/**
+ * The production search (safe-interval path planning, Phillips & Likhachev, ICRA 2011) must
+ * find the same earliest arrival as a plain space-time A* over (cell, tick) states (Silver
+ * 2005), which the paper proves for unit-duration moves and waits. The reference below is
+ * written from the definitions only: its own grid neighbours, its own reservation model (a
+ * set of "cell@tick" entries plus rests from a tick on), a Manhattan heuristic, vertex and
+ * swap collisions as in Stern et al., SoCS 2019. It shares no code with sim/.
+ */
+
+interface Instance {
+  width: number;
+  height: number;
+  blocked: boolean[];
+  /** Other robots' paths: cells at consecutive ticks from `start`, then a rest forever at the last cell. */
+  others: { start: number; cells: number[] }[];
+  /** A path of the searching robot itself (its own reservations never block it), or null. */
+  own: { start: number; cells: number[] } | null;
+  horizon: number;
+  query: { start: number; startTick: number; goal: number; holdTicks: number; restForever: boolean };
+}
+
+const searcher = 9;
+
+/** Independent model of the reservations: who holds a cell at a tick. */
+class ReferenceReservations {
+  private readonly held = new Map<string, number>();
+  private readonly rests = new Map<number, { robot: number; from: number }>();
+  private readonly paths = new Map<number, { start: number; cells: number[] }>();
+
+  add(robot: number, start: number, cells: number[]): void {
+    cells.forEach((cell, i) => this.held.set(`${cell}@${start + i}`, robot));
+    this.rests.set(cells[cells.length - 1], { robot, from: start + cells.length - 1 });
+    this.paths.set(robot, { start, cells });
+  }
+
+  holderAt(cell: number, tick: number): number {
+    const h = this.held.get(`${cell}@${tick}`);
+    if (h !== undefined) return h;
+    const rest = this.rests.get(cell);
+    return rest && rest.from <= tick ? rest.robot : -1;
+  }
+
+  positionOf(robot: number, tick: number): number {
+    const p = this.paths.get(robot);
+    if (!p || tick < p.start) return -1;
+    return p.cells[Math.min(tick - p.start, p.cells.length - 1)];
+  }
+
+  freeFor(cell: number, tick: number, self: number): boolean {
+    const h = this.holderAt(cell, tick);
+    return h < 0 || h === self;
+  }
+
+  /** Another robot at `to` at tick moves to `from` at tick + 1. */
+  swapWith(from: number, to: number, tick: number, self: number): boolean {
+    const other = this.holderAt(to, tick);
+    return other >= 0 && other !== self && this.positionOf(other, tick + 1) === from;
+  }
+
+  freeForever(cell: number, tick: number, self: number, lastTick: number): boolean {
+    const rest = this.rests.get(cell);
+    if (rest && rest.robot !== self) return false;
+    for (let t = tick; t <= lastTick; t++) if (!this.freeFor(cell, t, self)) return false;
+    return true;
+  }
+}
+
+function neighboursOf(instance: Floor, cell: number): number[] {
+  const { width, height, blocked } = instance;
+  const x = cell % width;
+  const y = Math.floor(cell / width);
+  const out: number[] = [];
+  if (y > 0) out.push(cell - width);
+  if (x < width - 1) out.push(cell + 1);
+  if (y < height - 1) out.push(cell + width);
+  if (x > 0) out.push(cell - 1);
+  return out.filter((c) => !blocked[c]);
+}
+
+/** Plain space-time A* (Manhattan heuristic, closed set of (cell, tick)): the earliest arrival tick, or null. */
+function referenceArrival(instance: Instance, reservations: ReferenceReservations, lastReservedTick: number, self = searcher): number | null {
+  const { start, startTick, goal, holdTicks, restForever } = instance.query;
+  const lastTick = startTick + instance.horizon - 2 - (restForever ? 0 : holdTicks);
+  const holds = (t: number) => {
+    if (restForever) return reservations.freeForever(goal, t, self, Math.max(t, lastReservedTick + 1));
+    for (let k = t; k <= t + holdTicks; k++) if (!reservations.freeFor(goal, k, self)) return false;
+    return true;
+  };
+  if (start === goal) return holds(startTick) ? startTick : null;
+  const w = instance.width;
+  const h = (c: number) => Math.abs((c % w) - (goal % w)) + Math.abs(Math.floor(c / w) - Math.floor(goal / w));
+  const open: { cell: number; tick: number; f: number }[] = [{ cell: start, tick: startTick, f: startTick + h(start) }];
+  const closed = new Set<string>([`${start}@${startTick}`]);
+  while (open.length > 0) {
+    let best = 0;
+    for (let i = 1; i < open.length; i++) if (open[i].f < open[best].f) best = i;
+    const { cell, tick } = open.splice(best, 1)[0];
+    if (cell === goal) return tick;
+    const next = tick + 1;
+    if (next > lastTick) continue;
+    for (const n of [cell, ...neighboursOf(instance, cell)]) {
+      const key = `${n}@${next}`;
+      if (closed.has(key)) continue;
+      if (!reservations.freeFor(n, next, self)) continue;
+      if (n !== cell && reservations.swapWith(cell, n, tick, self)) continue;
+      // The goal is terminal: entered only when the goal condition holds.
+      if (n === goal && !holds(next)) continue;
+      closed.add(key);
+      open.push({ cell: n, tick: next, f: next + h(n) });
+    }
+  }
+  return null;
+}
+
+type Floor = Pick<Instance, 'width' | 'height' | 'blocked'>;
+
+function randomFloor(random: () => number): (Floor & { floor: number[] }) | null {
+  const width = 3 + Math.floor(random() * 6);
+  const height = 2 + Math.floor(random() * 5);
+  const density = random() * 0.3;
+  const blocked = Array.from({ length: width * height }, () => random() < density);
+  const floor = blocked.flatMap((b, c) => (b ? [] : [c]));
+  return floor.length < 3 ? null : { width, height, blocked, floor };
+}
+
+/**
+ * A random walk for `robot` that avoids the robots in `model` (vertex, swap, rests) and ends
+ * where no later tick of theirs comes, so the reservations stay consistent; null if it cannot.
+ * `restChance`: probability of a path of one cell (a robot at rest at once).
+ */
+function randomWalk(random: () => number, floor: Floor & { floor: number[] }, model: ReferenceReservations, robot: number, maxLength: number, restChance = 0): { start: number; cells: number[] } | null {
+  const start = Math.floor(random() * 4);
+  let cell = floor.floor[Math.floor(random() * floor.floor.length)];
+  if (!model.freeFor(cell, start, robot) || !freeOnwards(model, cell, start, robot)) return null;
+  const cells = [cell];
+  const length = random() < restChance ? 1 : 1 + Math.floor(random() * maxLength);
+  for (let i = 1; i < length; i++) {
+    const t = start + i;
+    const options = [cell, ...neighboursOf(floor, cell)].filter((n) => model.freeFor(n, t, robot) && !(n !== cell && model.swapWith(cell, n, t - 1, robot)));
+    if (options.length === 0) break;
+    // Waits are likelier than in a plain walk, so cells carry runs of ticks.
+    const wait = random() < 0.3 && options.includes(cell);
+    if (!wait) cell = options[Math.floor(random() * options.length)];
+    cells.push(cell);
+  }
+  // Its rest must not cross another robot's later ticks.
+  if (!freeOnwards(model, cells[cells.length - 1], start + cells.length - 1, robot)) return null;
+  return { start, cells };
+}
+
+function randomQuery(random: () => number, floor: Floor & { floor: number[] }, model: ReferenceReservations, self = searcher): Instance['query'] | null {
+  const pick = () => floor.floor[Math.floor(random() * floor.floor.length)];
+  const startTick = Math.floor(random() * 6);
+  const start = pick();
+  if (!model.freeFor(start, startTick, self)) return null;
+  const goal = random() < 0.1 ? start : pick();
+  return { start, startTick, goal, holdTicks: Math.floor(random() * 4), restForever: random() < 0.35 };
+}
+
+function randomInstance(seed: number): Instance | null {
+  const random = seedrandom(`sipp-${seed}`);
+  const floor = randomFloor(random);
+  if (!floor) return null;
+  const model = new ReferenceReservations();
+  const horizon = [8, 16, 32, 256][Math.floor(random() * 4)];
+  const others: Instance['others'] = [];
+  const robots = Math.floor(random() * 5);
+  for (let r = 0; r < robots; r++) {
+    const path = randomWalk(random, floor, model, others.length, Math.min(horizon - 2, 18));
+    if (!path) continue;
+    model.add(others.length, path.start, path.cells);
+    others.push(path);
+  }
+  // The searcher's own reservations, consistent with the others (as in the policies).
+  const own = random() < 0.3 ? randomWalk(random, floor, model, searcher, Math.min(horizon - 2, 18)) : null;
+  const query = randomQuery(random, floor, model);
+  if (!query) return null;
+  return { width: floor.width, height: floor.height, blocked: floor.blocked, others, own, horizon, query };
+}
+
+/** No robot other than `self` holds `cell` at `tick` or later. */
+function freeOnwards(model: ReferenceReservations, cell: number, tick: number, self: number): boolean {
+  return model.freeForever(cell, tick, self, tick + 64);
+}
+
+function productionFor(instance: Instance) {
+  const kind = new Uint8Array(instance.width * instance.height).map((_, c) => (instance.blocked[c] ? CellKind.Blocked : CellKind.Floor));
+  const layout = buildLayout(instance.width, instance.height, kind);
+  const table = new ReservationTable(layout.cellCount, searcher + 1, instance.horizon);
+  instance.others.forEach((p, r) => table.reserve(r, Int32Array.from(p.cells), p.start, 0));
+  if (instance.own) table.reserve(searcher, Int32Array.from(instance.own.cells), instance.own.start, 0);
+  const search = new SpaceTimeAStar(layout, table);
+  return { layout, table, search };
+}
+
+describe('safe-interval search against a plain space-time A* (property test, fast-check)', () => {
+  it('finds the same earliest arrival on random small floors with random reservations, and its paths collide with none', () => {
+    let compared = 0;
+    let found = 0;
+    let waited = 0;
+    fc.assert(
+      fc.property(fc.integer({ min: 0, max: 10_000_000 }), (seed) => {
+        const instance = randomInstance(seed);
+        fc.pre(instance !== null);
+        const inst = instance!;
+        const { layout, table, search } = productionFor(inst);
+        // The horizon is an input of both searches (reserving long paths may have raised it).
+        inst.horizon = table.horizon;
+        const model = new ReferenceReservations();
+        inst.others.forEach((p, r) => model.add(r, p.start, p.cells));
+        const lastReserved = Math.max(0, ...inst.others.map((p) => p.start + p.cells.length));
+        const { start, startTick, goal, holdTicks, restForever } = inst.query;
+        const expected = referenceArrival(inst, model, lastReserved);
+        const path = search.search({ robot: searcher, start, startTick, goal, heuristic: distanceTable(layout, goal), holdTicks, restForever });
+        compared++;
+        expect(path === null ? null : startTick + path.length - 1).toBe(expected);
+        if (!path) return;
+        found++;
+        // Collision-free against the reservations, checked with the reference model.
+        expect(path[0]).toBe(start);
+        expect(path[path.length - 1]).toBe(goal);
+        for (let k = 1; k < path.length; k++) {
+          const t = startTick + k;
+          const [a, b] = [path[k - 1], path[k]];
+          if (a === b) waited++;
+          expect(a === b || neighboursOf(inst, a).includes(b)).toBe(true);
+          expect(model.freeFor(b, t, searcher)).toBe(true);
+          expect(a !== b && model.swapWith(a, b, t - 1, searcher)).toBe(false);
+          if (k < path.length - 1) expect(b).not.toBe(goal);
+        }
+        const arrival = startTick + path.length - 1;
+        if (restForever) expect(model.freeForever(goal, arrival, searcher, arrival + lastReserved + 2)).toBe(true);
+        else for (let t = arrival; t <= arrival + holdTicks; t++) expect(model.freeFor(goal, t, searcher)).toBe(true);
+      }),
+      { numRuns: Number(process.env.PROPERTY_RUNS ?? 600), seed: Number(process.env.PROPERTY_SEED ?? 20261201) },
+    );
+    // The instances must exercise the interesting cases, not only trivial ones.
+    expect(compared).toBeGreaterThanOrEqual(400);
+    expect(found).toBeGreaterThan(compared / 3);
+    expect(waited).toBeGreaterThan(20);
+  });
+
+  it('agrees with the reference over sequences of searches on one table that changes between them (reachability labels kept across searches)', () => {
+    let compared = 0;
+    let reusedSkips = 0;
+    fc.assert(
+      fc.property(fc.integer({ min: 0, max: 10_000_000 }), (seed) => {
+        const random = seedrandom(`sipp-sequence-${seed}`);
+        const floor = randomFloor(random);
+        fc.pre(floor !== null);
+        const f = floor!;
+        const kind = new Uint8Array(f.width * f.height).map((_, c) => (f.blocked[c] ? CellKind.Blocked : CellKind.Floor));
+        const layout = buildLayout(f.width, f.height, kind);
+        const robots = 8;
+        const table = new ReservationTable(layout.cellCount, robots, 64);
+        // Label at once, so the labels are built early and reused by later searches.
+        const search = new SpaceTimeAStar(layout, table, 200_000, 0);
+        const live = new Map<number, { start: number; cells: number[] }>();
+        // The reservations as robot `self` sees them: its own never block it.
+        const modelOf = (self: number) => {
+          const model = new ReferenceReservations();
+          for (const [r, p] of live) if (r !== self) model.add(r, p.start, p.cells);
+          return model;
+        };
+        for (let step = 0; step < 24; step++) {
+          const robot = Math.floor(random() * robots);
+          if (random() < 0.4) {
+            // Replace (or drop) one robot's path; many are rests of one cell, which block.
+            live.delete(robot);
+            table.release(robot, 0);
+            const path = random() < 0.8 ? randomWalk(random, f, modelOf(-1), robot, 10, 0.5) : null;
+            if (path) {
+              live.set(robot, path);
+              table.reserve(robot, Int32Array.from(path.cells), path.start, 0);
+            }
+            continue;
+          }
+          // Any robot may search, as in the policies (one searcher per table).
+          const self = Math.floor(random() * robots);
+          const model = modelOf(self);
+          const query = randomQuery(random, f, model, self);
+          if (!query) continue;
+          const instance: Instance = { ...f, others: [], own: null, horizon: table.horizon, query };
+          const lastReserved = Math.max(0, ...[...live.values()].map((p) => p.start + p.cells.length));
+          const expected = referenceArrival(instance, model, lastReserved, self);
+          const { start, startTick, goal, holdTicks, restForever } = query;
+          const [skipsBefore, passesBefore] = [search.unreachableSkips, search.reachabilityPasses];
+          const path = search.search({ robot: self, start, startTick, goal, heuristic: distanceTable(layout, goal), holdTicks, restForever });
+          expect(path === null ? null : startTick + path.length - 1).toBe(expected);
+          compared++;
+          // Ended by labels built in an earlier search, on a table changed since.
+          if (search.unreachableSkips > skipsBefore && search.reachabilityPasses === passesBefore) reusedSkips++;
+        }
+      }),
+      { numRuns: Number(process.env.PROPERTY_RUNS ?? 300), seed: Number(process.env.PROPERTY_SEED ?? 20261201) },
+    );
+    expect(compared).toBeGreaterThan(1000);
+    expect(reusedSkips).toBeGreaterThan(10);
+  });
+});
