@@ -1,12 +1,13 @@
 /**
  * `npm run bench`: engine and policy throughput in agent-steps per wall second (one robot
- * advanced by one tick = one agent-step), the planning share of wall time, and the
- * assignment solver against munkres-js on the same inputs. Never part of `npm test`.
+ * advanced by one tick = one agent-step), the planning share of wall time, the planners'
+ * search against the `pathfinding` library and on token passing's workload (bench/search.ts),
+ * and the assignment solver against munkres-js on the same inputs. Never part of `npm test`.
  *
  *   npm run bench                 table on stdout
  *   npm run bench -- --json       one JSON array of rows
  *   npm run bench -- --quick      skip the slow rows (munkres-js at 1000, pibt at 1,000 and 10,000 robots, the replay viewer)
- *   npm run bench -- --only NAME  only rows whose name starts with NAME (engine, policy, pibt, replay, assignment)
+ *   npm run bench -- --only NAME  only rows whose name starts with NAME (engine, policy, pibt, replay, search, assignment)
  */
 import { loadScenarioFile } from '../scenarios/load.ts';
 import { prepareSetup } from '../experiments/replications.ts';
@@ -76,6 +77,13 @@ if (wanted('pibt') && !quick && policies.some((p) => p.name === 'pibt')) {
 if (wanted('replay') && !quick) {
   const { benchReplay } = await import('./replay.ts');
   rows.push((await benchReplay()) as unknown as Row);
+}
+if (wanted('search')) {
+  const { benchSearch } = await import('./search.ts');
+  for (const row of benchSearch(quick)) {
+    rows.push(row);
+    log(`${row.name} ${JSON.stringify(row)}`);
+  }
 }
 if (wanted('assignment')) {
   const { benchAssignment } = await import('./assignment.ts');
