@@ -33,9 +33,9 @@
  * those resting robots' cells (one breadth-first pass, O(cells)) and keeps the labels while
  * the set of such rests stays the same (checked in O(robots), or O(1) when the table's rest
  * revision and the tick are unchanged). When the labels are stale the check is lazy: it runs
- * only once the search has spent `reachabilityAfter` expansions, since a search that
- * succeeds quickly needs no proof that it can. The check only ends searches that could not
- * succeed, so it never changes a result.
+ * only once the search has spent `reachabilityAfter` + its distance + floor cells / 32
+ * expansions, since a search that succeeds quickly needs no proof that it can. The check
+ * only ends searches that could not succeed, so it never changes a result.
  *
  * Memory follows what a search touches: the safe intervals of a cell are read from the
  * table the first time the search reaches it (a stamp per cell marks them current) into a
@@ -182,8 +182,11 @@ export class SpaceTimeAStar {
     const neighbors = this.layout.neighbors;
     let expanded = 0;
     let checked = false;
-    // A search on an open floor expands about as many states as its distance.
-    const lazyAfter = this.reachabilityAfter + heuristic[start];
+    // A search on an open floor expands about as many states as its distance; past that, it
+    // pays for the check once it has spent about what a labelling costs (about one expansion
+    // per 32 floor cells), so neither a doomed search nor a needless check costs much more
+    // than the other (the ski-rental rule).
+    const lazyAfter = this.reachabilityAfter + heuristic[start] + (this.layout.floorCells.length >> 5);
     while (this.heapSize > 0) {
       const node = this.heapPop();
       const cell = this.nodeCell[node];
