@@ -44,9 +44,10 @@
  * after its start (less the hold), fails and returns null.
  *
  * Headings (later): a state would be (cell, heading, safe interval), with the interval's
- * earliest tick kept per heading (`best` indexed interval x headings) and a turn successor
- * (same cell and interval, t + turn ticks); the intervals stay per cell, so `generate` and
- * the table need no change.
+ * earliest tick kept per heading (`intervalBest` indexed interval x headings, a node
+ * carrying its heading), a turn successor (same cell and interval, t + turn ticks, within
+ * the interval) and moves along the heading only; safe intervals stay per cell, so the
+ * table, `touch` and the interval scan in `generate` stay as they are.
  */
 import type { Layout } from './layout.ts';
 import { unreachable } from './distance-table.ts';
