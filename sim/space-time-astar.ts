@@ -34,8 +34,11 @@
  * the set of such rests stays the same (checked in O(robots), or O(1) when the table's rest
  * revision and the tick are unchanged). When the labels are stale the check is lazy: it runs
  * only once the search has spent `reachabilityAfter` + its distance + floor cells / 32
- * expansions, since a search that succeeds quickly needs no proof that it can. The check
- * only ends searches that could not succeed, so it never changes a result.
+ * expansions, since a search that succeeds quickly needs no proof that it can; but while
+ * more than a quarter of recent searches ended unreachable (robots boxed in by resting
+ * ones), a breadth-first pass from the start, stopping at the goal, runs first, as the old
+ * always-on check did. The check only ends searches that could not succeed, so it never
+ * changes a result.
  *
  * Memory follows what a search touches: the safe intervals of a cell are read from the
  * table the first time the search reaches it (a stamp per cell marks them current) into a
@@ -100,6 +103,10 @@ export class SpaceTimeAStar {
   private labelCheckedExcept = -1;
   private labelBuiltRevision = -1;
   private labelBuiltTick = -1;
+  private readonly passStamp: Int32Array;
+  private passId = 0;
+  /** Share of recent searches ended as unreachable (exponentially weighted, 1/16). */
+  private unreachableRate = 0;
   private searchId = 0;
   // The current request, kept in fields so the hot loop needs no closures.
   private robot = 0;
@@ -127,6 +134,7 @@ export class SpaceTimeAStar {
     this.cellCount = new Int32Array(cells);
     this.label = new Int32Array(cells);
     this.labelQueue = new Int32Array(cells);
+    this.passStamp = new Int32Array(cells);
     this.labelRest = new Int32Array(table.robots);
   }
 
@@ -160,12 +168,19 @@ export class SpaceTimeAStar {
     this.heapSize = 0;
     this.intervalsUsed = 0;
     if (!this.goalWindows(goal, startTick + 1, holdTicks, restForever)) return null;
-    // With usable labels the reachability check is free: do it now. Otherwise, or when they
-    // cannot prove it, (re)label once the search drags on.
-    if (this.labelsCurrent(startTick, start) && !this.reachable(start, goal)) {
-      this.unreachableSkips++;
-      return null;
+    // With usable labels the reachability check is free: do it now. Otherwise, while many
+    // recent searches were unreachable (a crowded floor, robots boxed in by resting ones), a
+    // breadth-first pass from the start settles it at once, as cheap as the boxed-in region
+    // is small; on an open floor, (re)label only once the search drags on.
+    let checked = false;
+    if (this.labelsCurrent(startTick, start)) {
+      if (!this.reachable(start, goal)) return this.unreachableEnd();
+    } else if (this.unreachableRate > 0.25) {
+      checked = true;
+      if (!this.reachableByPass(start, goal, startTick)) return this.unreachableEnd();
     }
+    // Decays toward the share of searches ended as unreachable (set again in unreachableEnd).
+    this.unreachableRate *= 15 / 16;
 
     // The start state: the robot stands on `start` at startTick whatever the table says (it
     // is there), and may stay while the cell stays free.
@@ -182,7 +197,6 @@ export class SpaceTimeAStar {
 
     const neighbors = this.layout.neighbors;
     let expanded = 0;
-    let checked = false;
     // A search on an open floor expands about as many states as its distance; past that, it
     // pays for the check once it has spent about what a labelling costs (about one expansion
     // per 32 floor cells), so neither a doomed search nor a needless check costs much more
@@ -205,6 +219,7 @@ export class SpaceTimeAStar {
         // Labels built for this very table and tick are as precise as they get.
         if (this.labelBuiltRevision !== table.restRevision || this.labelBuiltTick !== startTick) this.buildLabels(startTick);
         if (this.labelsCurrent(startTick, start) && !this.reachable(start, goal)) {
+          this.unreachableRate += 1 / 16;
           this.unreachableSkips++;
           break;
         }
@@ -353,6 +368,41 @@ export class SpaceTimeAStar {
     this.heapPush(node, (arrival - this.startTick) * 1048576 - g);
   }
 
+  /** True when `goal` is reachable from `start` without entering a cell another robot rests on since before `tick`. */
+  private reachableByPass(start: number, goal: number, tick: number): boolean {
+    const table = this.table;
+    const neighbors = this.layout.neighbors;
+    const stamp = this.passStamp;
+    const queue = this.labelQueue;
+    const id = ++this.passId;
+    this.reachabilityPasses++;
+    let head = 0;
+    let tail = 0;
+    queue[tail++] = start;
+    stamp[start] = id;
+    while (head < tail) {
+      const cell = queue[head++];
+      if (cell === goal) return true;
+      const base = cell * 4;
+      for (let d = 0; d < 4; d++) {
+        const n = neighbors[base + d];
+        if (n < 0 || stamp[n] === id) continue;
+        stamp[n] = id;
+        const rester = table.endRobot[n];
+        if (rester >= 0 && rester !== this.robot && table.endFrom[n] <= tick) continue;
+        queue[tail++] = n;
+      }
+    }
+    return false;
+  }
+
+  /** Ends a search proven unreachable before it began. */
+  private unreachableEnd(): null {
+    this.unreachableSkips++;
+    this.unreachableRate = (this.unreachableRate * 15) / 16 + 1 / 16;
+    return null;
+  }
+
   /** The cell robot r rests on since before `tick` (blocking everyone else), or -1. */
   private blockingRest(robot: number, tick: number): number {
     const table = this.table;
@@ -474,7 +524,7 @@ export class SpaceTimeAStar {
     const arrays = [
       this.nodeCell, this.nodeInterval, this.nodeTick, this.nodeParent, this.heapNode, this.heapKey,
       this.intervalLo, this.intervalHi, this.intervalBest, this.cellStamp, this.cellFirst, this.cellCount,
-      this.windowLo, this.windowHi, this.label, this.labelQueue, this.labelRest,
+      this.windowLo, this.windowHi, this.label, this.labelQueue, this.labelRest, this.passStamp,
     ];
     let bytes = 0;
     for (const a of arrays) bytes += a.byteLength;
