@@ -305,4 +305,41 @@ describe('safe-interval search against a plain space-time A* (property test, fas
     expect(compared).toBeGreaterThan(1000);
     expect(reusedSkips).toBeGreaterThan(10);
   });
+
+  it('on a crowded floor, after many unreachable searches, checks reachability before searching, with the reference results', () => {
+    // 40 x 3 floor; robots 0-2 rest on column 30, a wall between the searcher (robot 9 at
+    // (2, 1)) and the goals at column 35. Hand-worked: every goal there is unreachable until
+    // the wall opens.
+    const width = 40;
+    const at = (x: number, y: number) => y * width + x;
+    const floor: Floor = { width, height: 3, blocked: new Array(width * 3).fill(false) };
+    const layout = buildLayout(width, 3, new Uint8Array(width * 3).fill(CellKind.Floor));
+    const table = new ReservationTable(layout.cellCount, searcher + 1, 256);
+    const search = new SpaceTimeAStar(layout, table);
+    const rests = new Map<number, number>([[0, at(30, 0)], [1, at(30, 1)], [2, at(30, 2)]]);
+    for (const [r, c] of rests) table.rest(r, c, 0);
+    const ask = (goal: number) => {
+      const model = new ReferenceReservations();
+      for (const [r, c] of rests) model.add(r, 0, [c]);
+      const query = { start: at(2, 1), startTick: 0, goal, holdTicks: 0, restForever: false };
+      const expected = referenceArrival({ ...floor, others: [], own: null, horizon: table.horizon, query }, model, 1);
+      const path = search.search({ robot: searcher, ...query, heuristic: distanceTable(layout, goal) });
+      expect(path === null ? null : path.length - 1).toBe(expected);
+      return path;
+    };
+    for (let k = 0; k < 8; k++) expect(ask(at(35, k % 3))).toBeNull();
+    expect(search.unreachableSkips).toBe(8);
+    // The wall moves but still closes the floor; the labels no longer hold, the pass decides.
+    table.rest(1, at(31, 1), 0);
+    rests.set(1, at(31, 1));
+    const passes = search.reachabilityPasses;
+    const expansions = search.expansions;
+    expect(ask(at(35, 1))).toBeNull();
+    expect(search.reachabilityPasses).toBe(passes + 1);
+    expect(search.expansions).toBe(expansions);
+    // The wall opens at (30, 2): reachable, 35 - 2 + 1 = 34 ticks (one step down, 33 across).
+    table.rest(2, at(29, 0), 0);
+    rests.set(2, at(29, 0));
+    expect(ask(at(35, 2))?.length).toBe(35);
+  });
 });
