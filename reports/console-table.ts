@@ -70,21 +70,39 @@ export function renderRunTable(summary: RunSummary): string {
   lines.push(`${summary.scenario} | ${summary.policy} | ${summary.robots} robots | ${summary.replications} x ${summary.hours} h | seed ${summary.seed}`);
   lines.push(`${describeWarmup(summary)}; ${pct}% intervals ${how}`);
   lines.push('');
+  const work = summary.stationGroups.pickup;
+  const workName = summary.stations.some((s) => s.group === 'pickup' && s.kind === 'drop') ? 'pick stations' : 'pickup stations';
   const rows = [
-    intervalRow('throughput (tasks/h)', summary.throughputPerHour, 'rate'),
-    intervalRow(`lead time, mean (s)${open}`, summary.leadTimeSeconds, 'seconds'),
-    intervalRow(`lead time, p50 (s)${open}`, summary.leadTimeP50Seconds, 'seconds'),
-    intervalRow(`lead time, p95 (s)${open}`, summary.leadTimeP95Seconds, 'seconds'),
-    intervalRow('tasks in system', summary.tasksInSystem, 'count'),
-    intervalRow('backlog growth (tasks/h)', summary.backlogGrowthPerHour, 'rate'),
-    intervalRow('station idle', summary.stationIdleFraction, 'percent'),
-    intervalRow('station starved', summary.stationStarvedFraction, 'percent'),
+    intervalRow(summary.capacityRun ? 'capacity (tasks/h)' : 'throughput (tasks/h)', summary.throughputPerHour, 'rate'),
+    ...(summary.capacityRun
+      ? []
+      : [
+          intervalRow(`lead time, mean (s)${open}`, summary.leadTimeSeconds, 'seconds'),
+          intervalRow(`lead time, p50 (s)${open}`, summary.leadTimeP50Seconds, 'seconds'),
+          intervalRow(`lead time, p95 (s)${open}`, summary.leadTimeP95Seconds, 'seconds'),
+          intervalRow('tasks in system', summary.tasksInSystem, 'count'),
+          intervalRow('backlog growth (tasks/h)', summary.backlogGrowthPerHour, 'rate'),
+        ]),
+    intervalRow(`${workName}: utilisation`, work.utilisation, 'percent'),
+    intervalRow(`${workName}: idle`, work.idleFraction, 'percent'),
+    ...(work.noRobotWhileWorkWaitsFraction && work.robotTravellingWhileWorkWaitsFraction
+      ? [
+          intervalRow(`  idle, work waits, no robot assigned`, work.noRobotWhileWorkWaitsFraction, 'percent'),
+          intervalRow(`  idle, work waits, robot on its way`, work.robotTravellingWhileWorkWaitsFraction, 'percent'),
+        ]
+      : []),
+    intervalRow(`${workName}: queue (robot-s/h)`, work.queueSecondsPerHour, 'rate'),
+    ...(summary.stations.some((s) => s.group === 'drop') ? [intervalRow('drops: utilisation', summary.stationGroups.drop.utilisation, 'percent')] : []),
+    intervalRow('robots busy (holding a task)', summary.busyRobots, 'count'),
+    intervalRow('robot time parked while tasks open', summary.parkedWhileTasksOpenFraction, 'percent'),
     intervalRow('robot time: loaded travel', summary.robotTime.loaded, 'percent'),
     intervalRow('robot time: empty travel', summary.robotTime.empty, 'percent'),
     intervalRow('robot time: handling', summary.robotTime.handling, 'percent'),
     intervalRow('robot time: waiting/blocked', summary.robotTime.waiting, 'percent'),
     intervalRow('robot time: parked', summary.robotTime.parked, 'percent'),
     intervalRow('deadlock episodes (per replication)', summary.deadlocks, 'count'),
+    intervalRow('livelock episodes (per replication)', summary.livelocks, 'count'),
+    intervalRow('fleet gridlock episodes (per rep.)', summary.gridlocks, 'count'),
     intervalRow('robot-hours lost to deadlocks (per rep.)', summary.deadlockRobotHoursLost, 'hours'),
   ];
   lines.push(renderColumns(rows, ['metric', 'mean', `± half-width`, `${pct}% interval`]));
@@ -109,9 +127,28 @@ export function renderRunTable(summary: RunSummary): string {
   if (!summary.wellFormed) {
     lines.push(`warning: the floor is not well-formed for ${summary.robots} robots (${summary.wellFormedViolation}); planned policies may stall and leave tasks undone`);
   }
-  const worst = [...summary.stations].sort((a, b) => b.starvedFraction - a.starvedFraction).slice(0, 3);
+  const busiest = [
+    work.busiest ? `${workName.replace(/s$/, '')} ${work.busiest.cell} ${(work.busiest.utilisation * 100).toFixed(1)}%` : null,
+    summary.stationGroups.drop.busiest ? `drop ${summary.stationGroups.drop.busiest.cell} ${(summary.stationGroups.drop.busiest.utilisation * 100).toFixed(1)}%` : null,
+  ].filter((v) => v !== null);
+  if (busiest.length > 0) lines.push(`busiest: ${busiest.join('; ')}`);
+  const worst = summary.stations
+    .filter((s): s is typeof s & { noRobotFraction: number } => s.noRobotFraction !== null && s.noRobotFraction > 0)
+    .sort((a, b) => b.noRobotFraction - a.noRobotFraction)
+    .slice(0, 3);
   if (worst.length > 0) {
-    lines.push(`most starved stations: ${worst.map((s) => `${s.kind} ${s.cell} ${(s.starvedFraction * 100).toFixed(1)}%`).join(', ')}`);
+    lines.push(`most starved ${workName} (idle, work waiting, no robot assigned): ${worst.map((s) => `${s.cell} ${(s.noRobotFraction * 100).toFixed(1)}%`).join(', ')}`);
+  }
+  if (summary.capacityRun) {
+    const served = summary.loadedMetersPerTask.delivered.mean;
+    const offered = summary.loadedMetersPerTask.released.mean;
+    lines.push(
+      `capacity run: saturated demand keeps ${summary.capacityPoolDepth} open tasks (robots + task endpoints); lead time and tasks in system are not measured. Loaded distance per task served ${formatNumber(served, 'seconds')} m vs released ${formatNumber(offered, 'seconds')} m`,
+    );
+  }
+  if (summary.trace) {
+    if (summary.trace.notReleased > 0) lines.push(`warning: ${summary.trace.notReleased} of ${summary.trace.tasks} trace tasks fall after the run's end and were never released`);
+    if (summary.trace.endedAtLastTaskSeconds !== null) lines.push(`the run ended when the trace's last task was done (${summary.trace.endedAtLastTaskSeconds.toFixed(0)} s): throughput is over that span`);
   }
   lines.push(
     `speed: ${Math.round(summary.timing.agentStepsPerSecond).toLocaleString('en-US')} agent-steps/s, planning ${(summary.timing.planningShare * 100).toFixed(0)}% of ${summary.timing.wallSeconds.toFixed(1)} s`,

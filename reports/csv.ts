@@ -6,7 +6,7 @@ import { stringify } from 'csv-stringify/sync';
 import type { ReplicationRecord } from '../sim/engine.ts';
 import type { ReplicationMetrics, RunSummary } from './summary.ts';
 
-const round = (v: number, digits = 6): number | string => (Number.isFinite(v) ? Number(v.toFixed(digits)) : '');
+const round = (v: number | null, digits = 6): number | string => (v !== null && Number.isFinite(v) ? Number(v.toFixed(digits)) : '');
 
 const roundOrEmpty = (v: number | null): number | string => (v === null ? '' : round(v));
 
@@ -35,7 +35,15 @@ export function replicationsCsv(records: ReplicationRecord[], perReplication: Re
       robotWaitingFraction: round(w.robotTime.waiting),
       robotParkedFraction: round(w.robotTime.parked),
       deadlocks: w.deadlocks,
+      livelocks: w.livelocks,
+      gridlocks: w.gridlocks,
       deadlockRobotHoursLost: round(w.deadlockRobotHoursLost),
+      busyRobots: round(w.busyRobots),
+      parkedWhileTasksOpenFraction: round(w.parkedWhileTasksOpenFraction),
+      pickupStationUtilisation: round(w.stationGroups.pickup.utilisation),
+      pickupStationNoRobotFraction: round(w.stationGroups.pickup.noRobotFraction),
+      pickupStationTravellingFraction: round(w.stationGroups.pickup.travellingFraction),
+      dropStationUtilisation: round(w.stationGroups.drop.utilisation),
       deliveredAfterWarmup: w.delivered,
       released: record.released,
       delivered: record.delivered,
@@ -72,7 +80,17 @@ export function throughputSeriesCsv(records: ReplicationRecord[], cutIntervals: 
 
 export function stationsCsv(summary: RunSummary): string {
   return stringify(
-    summary.stations.map((s) => ({ cell: s.cell, kind: s.kind, idleFraction: round(s.idleFraction), starvedFraction: round(s.starvedFraction) })),
+    summary.stations.map((s) => ({
+      cell: s.cell,
+      kind: s.kind,
+      idleFraction: round(s.idleFraction),
+      starvedFraction: round(s.starvedFraction),
+      group: s.group,
+      utilisation: round(s.utilisation),
+      noRobotFraction: round(s.noRobotFraction),
+      travellingFraction: round(s.travellingFraction),
+      queueSecondsPerHour: round(s.queueSecondsPerHour),
+    })),
     { header: true },
   );
 }

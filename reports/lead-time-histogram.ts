@@ -19,8 +19,11 @@ export function leadTimesAfterWarmup(records: ReplicationRecord[], cutIntervals:
   const values: number[] = [];
   for (const record of records) {
     const m = record.metrics;
-    const fromTick = cutIntervals * m.intervalTicks;
-    for (let i = 0; i < m.deliveryTicks.length; i++) if (m.deliveryTicks[i] >= fromTick) values.push(m.leadTicks[i] * record.tickSeconds);
+    // Lead times are stored in delivery order; the per-interval delivery counts say where the cut falls.
+    let before = 0;
+    for (let i = 0; i < Math.min(cutIntervals, m.intervalCount); i++) before += m.deliveries[i];
+    const leads = m.leadTicks;
+    for (let i = before; i < leads.length; i++) values.push(leads[i] * record.tickSeconds);
   }
   return values;
 }

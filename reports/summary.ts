@@ -20,11 +20,12 @@
 import type { Scenario } from '../sim/model.ts';
 import type { ReplicationRecord } from '../sim/engine.ts';
 import { RunError } from '../sim/errors.ts';
-import { cellLabel, CellKind, checkWellFormed, parseLayout } from '../sim/layout.ts';
+import { checkWellFormed, parseLayout } from '../sim/layout.ts';
 import { batchMeansInterval, batchMeansRule, clipInterval, intervalOf, mserCut, type Interval } from './stats/index.ts';
 import { windowMetrics, type WindowMetrics } from './window-metrics.ts';
 import { assessStability, type StabilityReport } from './stability.ts';
 import { safetyNote } from './safety.ts';
+import { stationGroupSummaries, stationRows, type StationGroupSummary, type StationRow } from './station-summary.ts';
 
 export interface WarmupInfo {
   /** `none`: no automatic cut because demand varies in time (see `note`). */
@@ -82,15 +83,32 @@ export interface RunSummary {
   robotTime: { loaded: Interval; empty: Interval; handling: Interval; waiting: Interval; parked: Interval };
   /** Per replication, always (with one replication: the count, no interval). */
   deadlocks: Interval;
+  livelocks: Interval;
+  gridlocks: Interval;
+  /** Robot-hours lost in deadlock and livelock episodes. */
   deadlockRobotHoursLost: Interval;
+  /** Saturated demand: throughput and robot time measure capacity; lead time and tasks in system are not reported. */
+  capacityRun: boolean;
+  /** Saturated demand: the open-task pool's depth (robots + task endpoints); null otherwise. */
+  capacityPoolDepth: number | null;
+  /** Mean loaded distance (meters) of tasks delivered and released after the warm-up: a gap shows dispatch favouring short tasks. */
+  loadedMetersPerTask: { delivered: Interval; released: Interval };
+  /** Mean number of robots holding a task. */
+  busyRobots: Interval;
+  /** Share of robot time parked (no task, not moving) while released tasks were open. */
+  parkedWhileTasksOpenFraction: Interval;
   collisions: number;
-  tasks: { released: number; delivered: number; open: number };
+  /** `open` = released and not delivered at the end, counted by task state; `openByState` splits it. */
+  tasks: { released: number; delivered: number; open: number; openByState: { waiting: number; held: number; assigned: number; pickedUp: number } };
+  /** Trace demand: tasks in the trace, tasks released after the run's end (never released), and whether the run ended at the last task's completion; null otherwise. */
+  trace: { tasks: number; notReleased: number; endedAtLastTaskSeconds: number | null } | null;
   warmupSeconds: number;
   warmup: WarmupInfo;
   /** One replication: the lag-1 check of each metric's batch means; null over replications. */
   batchMeans: { maximumLag1: number; minimumBatches: number; unreliable: string[]; metrics: Record<string, BatchMeansCheck> } | null;
   littlesLaw: { applicable: boolean; tasksInSystem: number; throughputTimesLeadTime: number; relativeGap: number };
-  stations: { cell: string; kind: 'pickup' | 'drop'; idleFraction: number; starvedFraction: number }[];
+  stationGroups: { pickup: StationGroupSummary; drop: StationGroupSummary };
+  stations: StationRow[];
   /** Well-formedness of the floor for this fleet (Ma et al. 2017); planned policies need it to finish every task. */
   wellFormed: boolean;
   wellFormedViolation: string | null;
@@ -128,7 +146,9 @@ export function warmupCut(scenario: Scenario, records: ReplicationRecord[]): War
   const m = records[0].metrics;
   const intervalSeconds = m.intervalTicks * records[0].tickSeconds;
   if (scenario.run.warmup !== 'auto') {
-    const intervals = Math.min(m.intervalCount - 1, Math.round((scenario.run.warmup * 3600) / intervalSeconds));
+    // Bounded by the planned run (a trace that ends early leaves fewer intervals: the cut stands and may leave no delivery).
+    const planned = Math.ceil(records[0].plannedEndTick / m.intervalTicks);
+    const intervals = Math.min(planned - 1, Math.round((scenario.run.warmup * 3600) / intervalSeconds));
     return { method: 'fixed', seconds: intervals * intervalSeconds, intervals, tooShort: false, note: null };
   }
   const varying = timeVaryingDemand(scenario);
@@ -251,13 +271,9 @@ export function summarize(scenario: Scenario, records: ReplicationRecord[], wall
 
   const layout = parseLayout(scenario.layoutText);
   const wellFormed = checkWellFormed(layout, scenario.fleet.robots);
-  const stations = records[0].stationCells;
-  const stationRows = Array.from(stations, (cell, s) => ({
-    cell: cellLabel(layout, cell),
-    kind: (layout.kind[cell] === CellKind.Pickup ? 'pickup' : 'drop') as 'pickup' | 'drop',
-    idleFraction: mean(perReplication.map((w) => w.stationIdle[s])),
-    starvedFraction: mean(perReplication.map((w) => w.stationStarved[s])),
-  }));
+  const stations = stationRows(layout, records[0], perReplication);
+  const sum = (pick: (r: ReplicationRecord) => number) => records.reduce((s, r) => s + pick(r), 0);
+  const demand = scenario.demand;
 
   const throughput = interval('throughputPerHour', (w) => w.throughputPerHour, 'nonNegative');
   const lead = leadInterval('leadTimeSeconds', (w) => w.leadTimeSeconds);
@@ -309,13 +325,32 @@ export function summarize(scenario: Scenario, records: ReplicationRecord[], wall
       parked: interval('robotTime.parked', (w) => w.robotTime.parked, 'fraction'),
     },
     deadlocks: perReplicationInterval((w) => w.deadlocks, 'nonNegative'),
+    livelocks: perReplicationInterval((w) => w.livelocks, 'nonNegative'),
+    gridlocks: perReplicationInterval((w) => w.gridlocks, 'nonNegative'),
     deadlockRobotHoursLost: perReplicationInterval((w) => w.deadlockRobotHoursLost, 'nonNegative'),
-    collisions: records.reduce((s, r) => s + r.collisions, 0),
-    tasks: {
-      released: records.reduce((s, r) => s + r.released, 0),
-      delivered: records.reduce((s, r) => s + r.delivered, 0),
-      open: records.reduce((s, r) => s + r.open, 0),
+    capacityRun: demand.kind === 'saturated',
+    capacityPoolDepth: records[0].poolDepth,
+    loadedMetersPerTask: {
+      delivered: interval('loadedMetersPerTask.delivered', (w) => w.deliveredLoadedMeters, 'nonNegative'),
+      released: interval('loadedMetersPerTask.released', (w) => w.releasedLoadedMeters, 'nonNegative'),
     },
+    busyRobots: interval('busyRobots', (w) => w.busyRobots, 'nonNegative'),
+    parkedWhileTasksOpenFraction: interval('parkedWhileTasksOpenFraction', (w) => w.parkedWhileTasksOpenFraction, 'fraction'),
+    collisions: sum((r) => r.collisions),
+    tasks: {
+      released: sum((r) => r.tasks.released),
+      delivered: sum((r) => r.tasks.delivered),
+      open: sum((r) => r.open),
+      openByState: { waiting: sum((r) => r.tasks.open), held: sum((r) => r.tasks.held), assigned: sum((r) => r.tasks.assigned), pickedUp: sum((r) => r.tasks.pickedUp) },
+    },
+    trace:
+      demand.kind === 'trace'
+        ? {
+            tasks: demand.tasks.length,
+            notReleased: records[0].traceTasksNotReleased ?? 0,
+            endedAtLastTaskSeconds: records.every((r) => r.endedAtLastTraceDelivery) ? Math.max(...records.map((r) => r.endTick * r.tickSeconds)) : null,
+          }
+        : null,
     warmupSeconds: warmup.seconds,
     warmup,
     batchMeans:
@@ -335,7 +370,8 @@ export function summarize(scenario: Scenario, records: ReplicationRecord[], wall
       throughputTimesLeadTime: littleRight,
       relativeGap: Math.abs(inSystem.mean - littleRight) / Math.max(1e-12, Math.abs(inSystem.mean)),
     },
-    stations: stationRows,
+    stationGroups: stationGroupSummaries(stations, interval),
+    stations,
     wellFormed: wellFormed.wellFormed,
     wellFormedViolation: wellFormed.violation,
     agentSteps,

@@ -18,15 +18,19 @@ import { tickSecondsOf } from './model.ts';
 import { CellKind, type Layout } from './layout.ts';
 import type { DistanceTables } from './distance-table.ts';
 import { EventQueue } from './event-queue.ts';
-import { World, Phase, TaskState, isHandling, isLoaded } from './world.ts';
+import { unreachable } from './distance-table.ts';
+import { World, Phase, TaskState, isHandling, isLoaded, type TaskStateCounts } from './world.ts';
 import type { Policy, PolicyFactory } from './policy.ts';
 import { CollisionValidator } from './validator.ts';
-import { MetricsRecorder, type DeadlockEpisode } from './metrics.ts';
+import { MetricsRecorder } from './metrics.ts';
+import { DeadlockDetector } from './deadlock-detector.ts';
 import { ArrivalProcess, makeHandlingSampler, makePointChooser } from './demand.ts';
 import { RunError } from './errors.ts';
-import { GoalProgress } from './goal-progress.ts';
 
 const EventKind = { Motion: 0, HandlingDone: 1, Release: 2, Recover: 3, Wake: 4, Check: 5, End: 6 } as const;
+
+/** Station groups: where work queues (pickups; pick stations in round trips), and drops. */
+export const StationGroup = { Pickup: 0, Drop: 1 } as const;
 
 export interface SimulationSetup {
   scenario: Scenario;
@@ -36,21 +40,44 @@ export interface SimulationSetup {
   policyOptions: unknown;
 }
 
+/** Tasks in the world at the end of a replication, counted by state (sim/world.ts). */
+export interface TaskCounts extends TaskStateCounts {
+  released: number;
+}
+
 export interface ReplicationRecord {
   replication: number;
   tickSeconds: number;
+  cellMeters: number;
+  /** Tick at which the replication ended: the run's length, or one tick after the last trace task was done. */
   endTick: number;
+  /** The run's length in ticks as configured (`run.hours`). */
+  plannedEndTick: number;
   metrics: MetricsRecorder;
   /** Station cells, in the order of the station arrays in `metrics`. */
   stationCells: Int32Array;
+  /** StationGroup per station (same order). */
+  stationGroups: Uint8Array;
   released: number;
   delivered: number;
+  /** Released and not delivered at the end, counted by state (open + held + assigned + picked up). */
   open: number;
+  /** The end-of-run tasks by state; `released` = open + held + assigned + pickedUp + delivered. */
+  tasks: TaskCounts;
+  /** Release ticks of the tasks not delivered at the end of the run, ascending: lead time of an unstable run counts their ages. */
+  openTaskReleaseTicks: number[];
+  /** Saturated demand: the depth the open-task pool reached (it grows while the policy leaves robots idle); null otherwise. */
+  poolDepth: number | null;
+  /** Trace demand: tasks of the trace released after the run's end (never released); null otherwise. */
+  traceTasksNotReleased: number | null;
+  /** Trace demand: the run ended when the last task was done (delivered; round trips: shelf returned), before `run.hours`. */
+  endedAtLastTraceDelivery: boolean;
   collisions: number;
   vertexCollisions: number;
   swapCollisions: number;
   illegalSteps: number;
   collisionExamples: string[];
+  /** Robots x simulated ticks: one agent-step is one robot over one tick, moved or not. */
   agentSteps: number;
   motionTicks: number;
   events: number;
@@ -61,8 +88,6 @@ export interface ReplicationRecord {
   shelvesAccounted: number;
   /** Shelves standing on their storage points at the end (round trips). */
   shelvesAtStorage: number;
-  /** Release ticks of the tasks not delivered at the end of the run, ascending: lead time of an unstable run counts their ages. */
-  openTaskReleaseTicks: number[];
 }
 
 export interface ReplicationHooks {
@@ -76,12 +101,30 @@ export function streamFor(seed: number, replication: number, purpose: string): (
   return seedrandom(`fleetwright/${seed}/${replication}/${purpose}`);
 }
 
+/**
+ * The open-task pool of saturated demand (a capacity run). It starts at one task per robot
+ * plus one per task endpoint of the floor (pickup and drop points; storage and pick
+ * stations in round trips). A policy may not take every open task (token passing skips a
+ * task whose pickup or drop ends another robot's path), so a fixed pool can leave robots
+ * idle that could work: after every policy step that leaves robots without a task while
+ * the pool is full, the pool grows by one task per such robot, up to `maxDepth`. A policy
+ * that uses every robot keeps the starting depth (little room to pick short tasks); one
+ * whose rules bar tasks gets the choice it needs. Every released task stays in the pool
+ * until taken, so over a run the tasks served follow the demand's mix up to the pool's
+ * depth; the report shows the mean loaded distance of served tasks beside released ones.
+ */
+export function capacityPoolDepth(robots: number, layout: Layout, roundTrip: boolean): { startDepth: number; maxDepth: number } {
+  const endpoints = (roundTrip ? layout.storage.length : layout.pickups.length) + layout.drops.length;
+  return { startDepth: robots + endpoints, maxDepth: robots + 64 * endpoints };
+}
+
 export function runReplication(setup: SimulationSetup, replication: number, hooks: ReplicationHooks = {}): ReplicationRecord {
   const wallStart = performance.now();
   const { scenario, layout, distances } = setup;
   const tickSeconds = tickSecondsOf(scenario);
   const run = scenario.run;
-  const endTick = Math.max(1, Math.round((run.hours * 3600) / tickSeconds));
+  const plannedEndTick = Math.max(1, Math.round((run.hours * 3600) / tickSeconds));
+  let endTick = plannedEndTick;
   const intervalTicks = Math.max(1, Math.round(run.sampleSeconds / tickSeconds));
   const deadlockTicks = Math.max(1, Math.round(run.deadlockSeconds / tickSeconds));
   const recoveryTicks = Math.round(run.recoverySeconds / tickSeconds);
@@ -89,17 +132,23 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
   const demand = scenario.demand;
   const roundTrip = demand.mode === 'round-trip';
 
-  // Stations: every pickup and drop point.
+  // Stations: pickup and drop points in delivery mode; pick stations (D) in round trips.
   const stationOf = new Int32Array(layout.cellCount).fill(-1);
   const stationCellsList: number[] = [];
+  const stationGroupList: number[] = [];
   for (let c = 0; c < layout.cellCount; c++) {
-    if (layout.kind[c] === CellKind.Pickup || layout.kind[c] === CellKind.Drop) {
-      stationOf[c] = stationCellsList.length;
-      stationCellsList.push(c);
-    }
+    const kind = layout.kind[c];
+    const group = kind === CellKind.Drop ? (roundTrip ? StationGroup.Pickup : StationGroup.Drop) : kind === CellKind.Pickup && !roundTrip ? StationGroup.Pickup : -1;
+    if (group < 0) continue;
+    stationOf[c] = stationCellsList.length;
+    stationCellsList.push(c);
+    stationGroupList.push(group);
   }
   const stationCells = Int32Array.from(stationCellsList);
-  const metrics = new MetricsRecorder(intervalTicks, endTick, stationCells.length, layout.cellCount);
+  const stationGroups = Uint8Array.from(stationGroupList);
+  const metrics = new MetricsRecorder(intervalTicks, endTick, stationCells.length, robots, layout.cellCount);
+  /** The station where a task's work queues: its pickup, or its pick station in a round trip. */
+  const workStation = (pickup: number, drop: number): number => stationOf[roundTrip ? drop : pickup];
 
   const world = new World(layout, robots);
   placeRobots(world, layout);
@@ -118,6 +167,12 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
   const pickupCells = roundTrip ? layout.storage : layout.pickups;
   const choosePickup = demand.kind === 'trace' ? null : makePointChooser(pickupCells, demand.pickups);
   const chooseDrop = demand.kind === 'trace' ? null : makePointChooser(layout.drops, demand.drops);
+  // Loaded distance of a task, read from the table of the endpoint kind with fewer cells
+  // (pickups in delivery mode, pick stations in round trips), which policies build anyway.
+  const loadedCells = (pickup: number, drop: number): number => {
+    const d = roundTrip ? distances.to(drop)[pickup] : distances.to(pickup)[drop];
+    return d >= unreachable ? 0 : roundTrip ? 2 * d : d;
+  };
 
   // Round trips: one shelf per storage point; tasks for a shelf that is away are held in FIFO order.
   const shelfHome = new Uint8Array(layout.cellCount);
@@ -130,9 +185,11 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
   const queue = new EventQueue();
   let released = 0;
   let delivered = 0;
+  let deliveredThisTick = false;
   let tick = 0;
   let policyDirty = true;
   let motionScheduledFor = -1;
+  let checkScheduledFor = -1;
   let events = 0;
 
   const releaseTask = (t: number, pickup: number, drop: number): void => {
@@ -152,11 +209,10 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
       heldTasks++;
     }
     released++;
-    metrics.released(t);
-    const ps = stationOf[pickup];
-    if (ps >= 0) metrics.stationPendingChange(ps, t, 1);
-    const ds = stationOf[drop];
-    if (ds >= 0) metrics.stationPendingChange(ds, t, 1);
+    metrics.released(t, loadedCells(pickup, drop));
+    for (const c of [pickup, drop]) if (stationOf[c] >= 0) metrics.stationTaskReleased(stationOf[c]);
+    const ws = workStation(pickup, drop);
+    if (ws >= 0) metrics.stationWorkChange(ws, t, 1, 0);
     policyDirty = true;
   };
 
@@ -164,25 +220,57 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     releaseTask(t, choosePickup!(pickupStream), chooseDrop!(dropStream));
   };
 
+  world.onAssign = (task) => {
+    const ws = workStation(world.taskPickup[task], world.taskDrop[task]);
+    if (ws >= 0) metrics.stationWorkChange(ws, world.currentTick, -1, 1);
+  };
+  world.onUnassign = (task) => {
+    const ws = workStation(world.taskPickup[task], world.taskDrop[task]);
+    if (ws >= 0) metrics.stationWorkChange(ws, world.currentTick, 1, -1);
+  };
+
   // Demand ------------------------------------------------------------------------
   let arrivals: ArrivalProcess | null = null;
   let traceIndex = 0;
+  let traceTasksNotReleased: number | null = null;
+  let poolDepth: number | null = null;
+  /** Saturated demand: grows the pool when the last policy step left robots idle; true when it did. */
+  let deepenPool: ((t: number) => boolean) | null = null;
   const secondsToTick = (s: number) => Math.floor(s / tickSeconds + 1e-9);
   if (demand.kind === 'poisson') {
     arrivals = new ArrivalProcess(demand.tasksPerHour, demand.profile);
     const first = secondsToTick(arrivals.next(arrivalStream));
     if (first < endTick) queue.schedule(first, EventKind.Release, EventKind.Release);
   } else if (demand.kind === 'trace') {
+    traceTasksNotReleased = 0;
+    for (const task of demand.tasks) if (secondsToTick(task.releaseSeconds) >= endTick) traceTasksNotReleased++;
     if (demand.tasks.length > 0) {
       const first = secondsToTick(demand.tasks[0].releaseSeconds);
       if (first < endTick) queue.schedule(first, EventKind.Release, EventKind.Release);
     }
   } else {
-    for (let i = 0; i < robots; i++) newRandomTask(0);
-    // Saturated demand keeps one open task per robot: an assignment releases the next,
-    // unless a task taken back by a swap already refilled the list.
-    world.onAssign = () => {
-      if (world.openTasks.length < robots) newRandomTask(world.currentTick);
+    // Saturated demand keeps a pool of released, unassigned tasks (open or held) at a fixed
+    // depth: every assignment releases the next, unless a task taken back by a swap already
+    // refilled it.
+    const rule = capacityPoolDepth(robots, layout, roundTrip);
+    poolDepth = rule.startDepth;
+    const topUp = (t: number) => {
+      while (world.openTasks.length + heldTasks < poolDepth!) newRandomTask(t);
+    };
+    topUp(0);
+    const countAssignment = world.onAssign;
+    world.onAssign = (task, robot) => {
+      countAssignment(task, robot);
+      topUp(world.currentTick);
+    };
+    deepenPool = (t: number): boolean => {
+      if (poolDepth! >= rule.maxDepth || world.openTasks.length + heldTasks < poolDepth!) return false;
+      let idle = 0;
+      for (let r = 0; r < robots; r++) if (world.robotPhase[r] === Phase.Idle) idle++;
+      if (idle === 0) return false;
+      poolDepth = Math.min(rule.maxDepth, poolDepth! + idle);
+      topUp(t);
+      return true;
     };
   }
 
@@ -198,11 +286,16 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
   const startHandling = (robot: number, t: number): void => {
     const h = handlingTicksFor(robot);
     const cell = world.robotCell[robot];
-    world.robotPhase[robot] = world.robotPhase[robot] + 1; // To* -> Handling*
+    const phase = world.robotPhase[robot];
+    world.robotPhase[robot] = phase + 1; // To* -> Handling*
     world.robotHandlingUntil[robot] = t + h;
     const s = stationOf[cell];
-    if (s >= 0) metrics.stationBusyChange(s, t, true);
-    progressed(robot, t);
+    if (s >= 0) {
+      // The robot reached the station where its work queues: no longer travelling to it.
+      const task = world.robotTask[robot];
+      if (s === workStation(world.taskPickup[task], world.taskDrop[task]) && phase === (roundTrip ? Phase.ToDrop : Phase.ToPickup)) metrics.stationWorkChange(s, t, 0, -1);
+      metrics.stationBusyChange(s, t, true);
+    }
     if (h === 0) finishHandling(robot, t);
     else queue.schedule(t + h, EventKind.HandlingDone, EventKind.HandlingDone, robot);
   };
@@ -218,68 +311,95 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     const cell = world.robotCell[robot];
     const s = stationOf[cell];
     if (s >= 0) metrics.stationBusyChange(s, t, false);
+    detector.served(cell, t);
     const phase = world.robotPhase[robot];
     policyDirty = true;
     if (phase === Phase.HandlingPickup) {
-      world.taskState[task] = TaskState.PickedUp;
-      world.taskPickedTick[task] = t;
-      if (s >= 0) metrics.stationPendingChange(s, t, -1);
+      world.markPickedUp(task, t);
       if (roundTrip) {
         shelfHome[cell] = 0;
         shelvesOnRobots++;
       }
       world.robotPhase[robot] = Phase.ToDrop;
-      progressed(robot, t);
       arriveIfAtGoal(robot, t);
     } else if (phase === Phase.HandlingDrop) {
-      world.taskState[task] = TaskState.Delivered;
-      world.taskDeliveredTick[task] = t;
-      if (s >= 0) metrics.stationPendingChange(s, t, -1);
+      world.markDelivered(task, t);
       delivered++;
-      metrics.delivered(t, world.taskRelease[task]);
+      deliveredThisTick = true;
+      metrics.delivered(t, world.taskRelease[task], loadedCells(world.taskPickup[task], world.taskDrop[task]));
       if (roundTrip) {
         world.robotPhase[robot] = Phase.ToReturn;
-        progressed(robot, t);
         arriveIfAtGoal(robot, t);
       } else {
         world.robotTask[robot] = -1;
         world.robotPhase[robot] = Phase.Idle;
+        world.retire(task);
         world.version++;
-        progressed(robot, t);
       }
       checkConservation(t);
+      endTraceIfDone(t);
     } else if (phase === Phase.HandlingReturn) {
       shelfHome[cell] = 1;
       shelvesOnRobots--;
       world.robotTask[robot] = -1;
       world.robotPhase[robot] = Phase.Idle;
+      world.retire(task);
       world.version++;
-      progressed(robot, t);
       const list = shelfQueue.get(cell);
       if (list && list.length > 0) {
         const next = list.shift()!;
         heldTasks--;
-        world.taskState[next] = TaskState.Open;
-        world.openTasks.push(next);
-        world.openTasks.sort((a, b) => world.taskRelease[a] - world.taskRelease[b] || a - b);
-        world.version++;
+        world.releaseHeld(next);
       } else {
         shelfBusy[cell] = 0;
       }
+      endTraceIfDone(t);
     }
   };
 
-  const checkConservation = (t: number): void => {
-    let inFlight = 0;
+  // A trace whose every task is done (delivered; in round trips, its shelf back in place)
+  // ends the run there, so throughput is measured over the trace's span.
+  const endTraceIfDone = (t: number): void => {
+    if (demand.kind !== 'trace' || traceIndex < demand.tasks.length || world.retired < demand.tasks.length || t + 1 >= endTick) return;
+    endTick = t + 1;
+    queue.schedule(endTick, EventKind.End, EventKind.End);
+  };
+
+  // Conservation, counted by state (DESIGN §2: released = delivered + in flight + waiting):
+  // waiting from the open list and the shelf queues, in flight from what each robot holds,
+  // delivered from the world's retired slots plus round trips still returning their shelf.
+  // Every slot's stored state is recounted by a full scan every 256 checks and at the end.
+  let checks = 0;
+  const countByHolders = (): TaskCounts => {
+    let assigned = 0;
+    let pickedUp = 0;
+    let returning = 0;
     for (let r = 0; r < robots; r++) {
       const task = world.robotTask[r];
-      if (task >= 0 && world.taskState[task] !== TaskState.Delivered) inFlight++;
+      if (task < 0) continue;
+      const state = world.taskState[task];
+      if (world.taskRobot[task] !== r) throw new RunError(`conservation broken: robot ${r} holds task ${task}, which names robot ${world.taskRobot[task]}`);
+      if (state === TaskState.Assigned) assigned++;
+      else if (state === TaskState.PickedUp) pickedUp++;
+      else if (state === TaskState.Delivered) returning++;
+      else throw new RunError(`conservation broken: robot ${r} holds task ${task} in state ${state}`);
     }
-    const waiting = world.openTasks.length + heldTasks;
-    if (released !== delivered + inFlight + waiting) {
+    return { released, open: world.openTasks.length, held: heldTasks, assigned, pickedUp, delivered: world.retired + returning };
+  };
+  const checkConservation = (t: number): TaskCounts => {
+    const counts = countByHolders();
+    const total = counts.open + counts.held + counts.assigned + counts.pickedUp + counts.delivered;
+    if (released !== total || counts.delivered !== delivered) {
       throw new RunError(
-        `conservation broken at tick ${t}: released ${released} != delivered ${delivered} + in flight ${inFlight} + waiting ${waiting}`,
+        `conservation broken at tick ${t}: released ${released} != open ${counts.open} + held ${counts.held} + assigned ${counts.assigned} + picked up ${counts.pickedUp} + delivered ${counts.delivered} (deliveries counted: ${delivered})`,
       );
+    }
+    if ((checks++ & 255) === 0 || t >= endTick) {
+      const stored = world.countTasksByState();
+      for (const key of ['open', 'held', 'assigned', 'pickedUp', 'delivered'] as const) {
+        if (stored[key] !== counts[key]) throw new RunError(`conservation broken at tick ${t}: ${stored[key]} task slots are ${key}, but the lists and robots hold ${counts[key]}`);
+      }
+      for (const task of world.openTasks) if (world.taskState[task] !== TaskState.Open) throw new RunError(`conservation broken at tick ${t}: task ${task} in the open list has state ${world.taskState[task]}`);
     }
     if (roundTrip) {
       let home = 0;
@@ -288,63 +408,17 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
         throw new RunError(`shelf count broken at tick ${t}: ${home} at storage + ${shelvesOnRobots} on robots != ${layout.storage.length}`);
       }
     }
+    return counts;
   };
 
-  // Deadlock detection --------------------------------------------------------------
-  // Progress = a phase change or a new best distance to the current goal. A robot holding a
-  // goal that makes none for deadlockTicks is stalled; neighbouring stalled robots form one
-  // episode. This also catches livelocks (robots that move without getting closer).
-  const lastProgress = new Int32Array(robots);
-  const goalProgress = new GoalProgress(robots, distances.fields);
-  const episodeOf = new Int32Array(robots).fill(-1);
-  const stallStart = new Int32Array(robots);
-  const episodes: (DeadlockEpisode & { members: Set<number> })[] = [];
-  function progressed(robot: number, t: number): void {
-    lastProgress[robot] = t;
-    goalProgress.reset(robot);
-    if (episodeOf[robot] >= 0) leaveEpisode(robot, t, false);
-  }
-  const leaveEpisode = (robot: number, t: number, cleared: boolean): void => {
-    const episode = episodes[episodeOf[robot]];
-    episode.lostTicks += t - stallStart[robot];
-    episode.members.delete(robot);
-    if (cleared) episode.cleared = true;
-    episodeOf[robot] = -1;
-    if (episode.members.size === 0) episode.endTick = t;
-  };
-  const holdsGoal = (robot: number): boolean => {
-    const phase = world.robotPhase[robot];
-    return phase === Phase.ToPickup || phase === Phase.ToDrop || phase === Phase.ToReturn;
-  };
-  const detectStalls = (t: number): void => {
-    for (let r = 0; r < robots; r++) {
-      if (episodeOf[r] >= 0 || !holdsGoal(r)) continue;
-      if (t - lastProgress[r] < deadlockTicks) continue;
-      let join = -1;
-      const cell = world.robotCell[r];
-      for (let d = 0; d < 4 && join < 0; d++) {
-        const n = layout.neighbors[cell * 4 + d];
-        if (n >= 0 && world.occupant[n] >= 0) join = episodeOf[world.occupant[n]];
-      }
-      if (join < 0) {
-        join = episodes.length;
-        episodes.push({ stallTick: lastProgress[r], detectTick: t, endTick: -1, robots: 0, lostTicks: 0, cleared: false, members: new Set() });
-        if (setup.policy.allowsRecovery && recoveryTicks > 0) queue.schedule(t + recoveryTicks, EventKind.Recover, EventKind.Recover, join);
-      }
-      const episode = episodes[join];
-      episode.members.add(r);
-      episode.robots++;
-      episode.stallTick = Math.min(episode.stallTick, lastProgress[r]);
-      episodeOf[r] = join;
-      stallStart[r] = lastProgress[r];
-    }
-  };
+  // Deadlocks, livelocks, gridlock and station queues (sim/deadlock-detector.ts).
+  const detector = new DeadlockDetector(layout, distances, robots, deadlockTicks, stationOf, stationCells.length, (s, t, n) => metrics.stationQueueSet(s, t, n));
   const recover = (episodeId: number, t: number): void => {
-    const episode = episodes[episodeId];
     // The operator leaves one robot of the jam (the lowest-numbered) in place and drives the
     // others to parking, so the one left can go on; clearing every robot to parking can
     // rebuild the same head-on jam when they set out again.
-    const members = [...episode.members].sort((a, b) => a - b);
+    const members = detector.activeMembers(episodeId);
+    if (members.length === 0) return;
     for (const r of members.slice(members.length > 1 ? 1 : 0)) {
       const target = nearestFreeParking(world, layout, distances, world.robotCell[r]);
       if (target < 0) continue;
@@ -353,15 +427,13 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
       world.robotCell[r] = target;
       world.occupant[target] = r;
       validator.relocate(r, target);
-      leaveEpisode(r, t, true);
-      lastProgress[r] = t;
-      goalProgress.reset(r);
+      detector.relocated(r, t);
       policy.onRelocated?.(r, t);
       arriveIfAtGoal(r, t);
     }
     policyDirty = true;
     // A robot left in place that still makes no progress is cleared at the next visit.
-    if (episode.members.size > 0) queue.schedule(t + recoveryTicks, EventKind.Recover, EventKind.Recover, episodeId);
+    if (detector.activeMembers(episodeId).length > 0) queue.schedule(t + recoveryTicks, EventKind.Recover, EventKind.Recover, episodeId);
   };
 
   // Policy ------------------------------------------------------------------------------
@@ -370,9 +442,10 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     setup.policyOptions as never,
   );
   const moves = new Int32Array(robots);
+  const wantedCells = policy.wantedCells ?? null;
+  let wantedFresh = false;
   let planningMs = 0;
   let motionTicks = 0;
-  let agentSteps = 0;
   let accountedUntil = 0;
 
   const accountStill = (from: number, to: number): void => {
@@ -389,7 +462,7 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
         cellWaiting[world.robotCell[r]] += to - from;
       } else parked++;
     }
-    metrics.addStill(from, to, handling, waiting, parked);
+    metrics.addStill(from, to, handling, waiting, parked, handling + waiting, world.openTasks.length > 0 ? parked : 0);
   };
 
   const executeMotion = (t: number): void => {
@@ -399,10 +472,12 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     let handling = 0;
     let waiting = 0;
     let parked = 0;
+    let busy = 0;
     const cells = world.robotCell;
     const occupant = world.occupant;
     for (let r = 0; r < robots; r++) {
       const phase = world.robotPhase[r];
+      if (phase !== Phase.Idle) busy++;
       const from = cells[r];
       if (isHandling(phase)) {
         handling++;
@@ -424,32 +499,16 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     }
     for (let r = 0; r < robots; r++) occupant[cells[r]] = r;
     validator.check(cells, t);
-    metrics.addStep(t, loaded, empty, handling, waiting, parked);
+    metrics.addStep(t, loaded, empty, handling, waiting, parked, busy, world.openTasks.length > 0 ? parked : 0);
     motionTicks++;
-    agentSteps += robots;
-    // Arrivals and progress.
     for (let r = 0; r < robots; r++) {
       const goal = world.goalOf(r);
-      if (goal < 0) {
-        if (!isHandling(world.robotPhase[r])) lastProgress[r] = t;
-        continue;
-      }
-      const cell = cells[r];
-      if (cell === goal) {
-        startHandling(r, t);
-        continue;
-      }
-      if (goalProgress.observe(r, goal, cell)) {
-        lastProgress[r] = t;
-        if (episodeOf[r] >= 0) leaveEpisode(r, t, false);
-      }
+      if (goal >= 0 && cells[r] === goal) startHandling(r, t);
     }
-    detectStalls(t);
     hooks.afterMotion?.(t, world);
   };
 
   // Main loop -------------------------------------------------------------------------
-  for (let r = 0; r < robots; r++) lastProgress[r] = 0;
   queue.schedule(0, EventKind.Wake, EventKind.Wake);
   queue.schedule(endTick, EventKind.End, EventKind.End);
   const progressEvery = Math.max(1, Math.floor(endTick / 200));
@@ -464,7 +523,7 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
       tick = t;
       world.currentTick = t;
       if (hooks.progress && t >= nextProgress) {
-        hooks.progress(Math.min(1, t / endTick));
+        hooks.progress(Math.min(1, t / plannedEndTick));
         nextProgress = t + progressEvery;
       }
     }
@@ -504,70 +563,93 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
           policyDirty = true;
           break;
         case EventKind.Check:
-          detectStalls(tick);
           break;
         case EventKind.End:
-          ended = true;
+          ended = tick >= endTick;
           break;
       }
     }
     if (ended) break;
-    if (!policyDirty) continue;
-    policyDirty = false;
-    for (let r = 0; r < robots; r++) moves[r] = world.robotCell[r];
-    const planStart = performance.now();
-    const wanted = policy.step(tick, moves);
-    planningMs += performance.now() - planStart;
     let anyMove = false;
-    for (let r = 0; r < robots; r++) {
-      if (moves[r] !== world.robotCell[r] && !isHandling(world.robotPhase[r])) {
-        anyMove = true;
-        break;
-      }
-    }
-    if ((anyMove || wanted <= tick + 1) && motionScheduledFor !== tick + 1) {
-      queue.schedule(tick + 1, EventKind.Motion, EventKind.Motion);
-      motionScheduledFor = tick + 1;
-    } else if (!anyMove && wanted > tick + 1) {
-      if (Number.isFinite(wanted)) queue.schedule(wanted, EventKind.Wake, EventKind.Wake);
-      // Robots holding a goal while nothing moves: make sure a stall is still noticed.
-      let earliest = Infinity;
+    let wanted = Infinity;
+    if (policyDirty) {
+      policyDirty = false;
+      for (let r = 0; r < robots; r++) moves[r] = world.robotCell[r];
+      if (wantedCells) wantedCells.fill(-1);
+      const planStart = performance.now();
+      wanted = policy.step(tick, moves);
+      planningMs += performance.now() - planStart;
+      wantedFresh = wantedCells !== null;
       for (let r = 0; r < robots; r++) {
-        if (holdsGoal(r) && episodeOf[r] < 0) earliest = Math.min(earliest, lastProgress[r] + deadlockTicks);
+        if (moves[r] !== world.robotCell[r] && !isHandling(world.robotPhase[r])) {
+          anyMove = true;
+          break;
+        }
       }
-      if (earliest < endTick && earliest < wanted) queue.schedule(Math.max(earliest, tick + 1), EventKind.Check, EventKind.Check);
+      if ((anyMove || wanted <= tick + 1) && motionScheduledFor !== tick + 1) {
+        queue.schedule(tick + 1, EventKind.Motion, EventKind.Motion);
+        motionScheduledFor = tick + 1;
+      } else if (!anyMove && wanted > tick + 1 && Number.isFinite(wanted)) {
+        queue.schedule(wanted, EventKind.Wake, EventKind.Wake);
+      }
+      // Capacity runs: robots left idle with the pool full get more tasks to choose from next tick.
+      if (deepenPool !== null && deepenPool(tick) && motionScheduledFor !== tick + 1) queue.schedule(tick + 1, EventKind.Wake, EventKind.Wake);
+    } else {
+      wantedFresh = false;
+    }
+    // The step [tick, tick + 1): robots go where the policy sent them if a motion tick follows.
+    const moving = motionScheduledFor === tick + 1;
+    const outcome = detector.evaluate(tick, world, moving ? moves : world.robotCell, wantedFresh ? wantedCells : null, deliveredThisTick);
+    deliveredThisTick = false;
+    if (setup.policy.allowsRecovery && recoveryTicks > 0) {
+      for (const id of outcome.clearable) queue.schedule(tick + recoveryTicks, EventKind.Recover, EventKind.Recover, id);
+    }
+    if (!moving) {
+      // Nothing moves for a while: make sure a stall is still noticed when it has lasted.
+      const check = detector.nextCheckTick(world);
+      if (check < endTick && check > tick && checkScheduledFor !== check && check < queue.peekTick()) {
+        queue.schedule(check, EventKind.Check, EventKind.Check);
+        checkScheduledFor = check;
+      }
     }
   }
+  metrics.truncate(endTick);
   accountStill(accountedUntil, endTick);
   metrics.finish();
-  for (let r = 0; r < robots; r++) if (episodeOf[r] >= 0) leaveEpisode(r, endTick, false);
-  for (const episode of episodes) {
-    const { members: _members, ...plain } = episode;
-    if (plain.endTick < 0) plain.endTick = endTick;
-    metrics.episodes.push(plain);
+  for (const episode of detector.finish(endTick)) metrics.episodes.push(episode);
+  const counts = checkConservation(endTick);
+  const openTaskReleaseTicks: number[] = [];
+  for (let task = 0; task < world.taskCount; task++) {
+    const state = world.taskState[task];
+    if (state !== TaskState.Free && state !== TaskState.Delivered) openTaskReleaseTicks.push(world.taskRelease[task]);
   }
-  checkConservation(endTick);
+  openTaskReleaseTicks.sort((a, b) => a - b);
   let home = 0;
   for (const c of layout.storage) home += shelfHome[c];
-  const openTaskReleaseTicks: number[] = [];
-  for (let task = 0; task < world.taskCount; task++) if (world.taskState[task] !== TaskState.Delivered) openTaskReleaseTicks.push(world.taskRelease[task]);
-  openTaskReleaseTicks.sort((a, b) => a - b);
 
   return {
     replication,
     tickSeconds,
+    cellMeters: scenario.units.cellMeters,
     endTick,
+    plannedEndTick,
     metrics,
     stationCells,
+    stationGroups,
     released,
     delivered,
-    open: released - delivered,
+    open: counts.open + counts.held + counts.assigned + counts.pickedUp,
+    tasks: counts,
+    openTaskReleaseTicks,
+    poolDepth,
+    traceTasksNotReleased,
+    endedAtLastTraceDelivery: endTick < plannedEndTick,
     collisions: validator.collisions,
     vertexCollisions: validator.vertexCollisions,
     swapCollisions: validator.swapCollisions,
     illegalSteps: validator.illegalSteps,
     collisionExamples: validator.examples,
-    agentSteps,
+    agentSteps: robots * endTick,
     motionTicks,
     events,
     wallSeconds: (performance.now() - wallStart) / 1000,
@@ -575,7 +657,6 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     policyCounters: policy.counters?.() ?? {},
     shelvesAccounted: home + shelvesOnRobots,
     shelvesAtStorage: home,
-    openTaskReleaseTicks,
   };
 }
 

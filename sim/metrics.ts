@@ -2,12 +2,19 @@
  * Per-replication recorder. Everything a report needs is accumulated into fixed sample
  * intervals (`intervalTicks` long), so any window of whole intervals (after a warm-up cut,
  * or one batch of a batch-means analysis) can be summarized afterwards without re-running:
- * deliveries, tasks-in-system area, robot-ticks by activity, and station idle and starved
- * ticks per station. Lead times are kept per delivered task (delivery tick, lead ticks).
+ * deliveries, releases, tasks-in-system area, robot-ticks by activity, robots holding a
+ * task, robots parked while tasks wait, loaded distance of released and delivered tasks,
+ * and per station: busy ticks, idle ticks while work waits split by its cause (no robot
+ * assigned, or a robot assigned but still travelling) and robot-ticks queued at it.
  *
  * Time-weighted quantities (station states, tasks in system) are accumulated lazily: a
  * state's duration is added when it changes, spread over the intervals it overlaps, so idle
  * stretches the engine skips cost nothing.
+ *
+ * Memory: the per-interval arrays grow with the run (one sample per `sampleSeconds`), the
+ * per-station ones as exact integer tick counts in 16- or 32-bit cells; lead times are kept
+ * exactly, one 32-bit integer per delivered task (their delivery interval follows from the
+ * per-interval delivery counts, so no delivery tick is stored).
  */
 
 export const RobotActivity = {
@@ -25,26 +32,63 @@ export const RobotActivity = {
 export const robotActivityNames = ['loaded', 'empty', 'handling', 'waiting', 'parked'] as const;
 const activityCount = 5;
 
+/**
+ * `deadlock`: robots that wait only on each other (a closed wait-for set); `livelock`: robots
+ * that keep moving without getting closer to their goals; `gridlock`: the fleet as a whole
+ * delivers nothing while tasks are open and robots free. See sim/deadlock-detector.ts.
+ */
+export type EpisodeKind = 'deadlock' | 'livelock' | 'gridlock';
+
 export interface DeadlockEpisode {
-  /** Earliest tick from which one of its robots made no progress. */
+  kind: EpisodeKind;
+  /** Earliest tick from which one of its robots made no progress (gridlock: the fleet). */
   stallTick: number;
   detectTick: number;
   endTick: number;
+  /** Number of robots that were members (members.length). */
   robots: number;
+  /** Robot indices, in the order they joined. */
+  members: number[];
+  /** Robot-ticks lost: each member's time from its stall to its recovery (or the run's end). */
   lostTicks: number;
+  /** The modelled operator cleared at least one of its robots. */
   cleared: boolean;
 }
 
+type TickCounts = Uint16Array | Uint32Array | Float64Array;
+
+/** Integer tick counts up to `max` per cell, in the narrowest exact typed array. */
+function tickCounts(length: number, max: number): TickCounts {
+  if (max <= 0xffff) return new Uint16Array(length);
+  if (max <= 0xffffffff) return new Uint32Array(length);
+  return new Float64Array(length);
+}
+
 export class MetricsRecorder {
-  readonly intervalCount: number;
+  /** Whole or partial sample intervals up to `endTick`. */
+  intervalCount: number;
   readonly deliveries: Float64Array;
   readonly releases: Float64Array;
   readonly tasksInSystemArea: Float64Array;
   readonly robotTicks: Float64Array;
-  readonly stationIdle: Float64Array;
-  readonly stationStarved: Float64Array;
-  deliveryTicks: number[] = [];
-  leadTicks: number[] = [];
+  /** Robot-ticks of robots holding a task (any phase but idle). */
+  readonly busyRobotTicks: Float64Array;
+  /** Robot-ticks of robots parked (no task, not moving) while at least one released task was open. */
+  readonly parkedWhileOpenTicks: Float64Array;
+  /** Sum of loaded distances (cells: pickup to drop, and back for round trips) of tasks released / delivered per interval. */
+  readonly releasedLoadedCells: Float64Array;
+  readonly deliveredLoadedCells: Float64Array;
+  /** Per interval x station (index interval * stationCount + station): ticks a robot was in service. */
+  readonly stationBusy: TickCounts;
+  /** Idle ticks while work for the station waited and no robot was assigned to any of it. */
+  readonly stationNoRobot: TickCounts;
+  /** Idle ticks while work waited and a robot assigned to it was still on its way. */
+  readonly stationTravelling: TickCounts;
+  /** Robot-ticks of robots queued behind a robot in service at the station. */
+  readonly stationQueue: TickCounts;
+  /** Whole run, per station: tasks released with work there, and handlings finished there. */
+  readonly stationReleased: Float64Array;
+  readonly stationServed: Float64Array;
   readonly episodes: DeadlockEpisode[] = [];
   /**
    * Robot-ticks of waiting per cell over the whole run (warm-up included): a robot holding a
@@ -53,29 +97,46 @@ export class MetricsRecorder {
    */
   readonly cellWaitingTicks: Float64Array;
 
+  private leadBuffer = new Int32Array(1024);
+  private leadCount = 0;
   private inSystem = 0;
   private inSystemSince = 0;
-  private readonly stationBusy: Uint8Array;
-  private readonly stationPending: Int32Array;
-  private readonly stationSince: Int32Array;
+  private readonly busy: Uint8Array;
+  private readonly unassigned: Int32Array;
+  private readonly assigned: Int32Array;
+  private readonly queued: Int32Array;
+  private readonly since: Int32Array;
 
   constructor(
     readonly intervalTicks: number,
-    readonly endTick: number,
+    /** End of the run; `truncate` moves it earlier when a trace ends the run. */
+    public endTick: number,
     readonly stationCount: number,
+    robots = 0,
     cellCount = 0,
   ) {
     this.cellWaitingTicks = new Float64Array(cellCount);
     this.intervalCount = Math.ceil(endTick / intervalTicks);
-    this.deliveries = new Float64Array(this.intervalCount);
-    this.releases = new Float64Array(this.intervalCount);
-    this.tasksInSystemArea = new Float64Array(this.intervalCount);
-    this.robotTicks = new Float64Array(this.intervalCount * activityCount);
-    this.stationIdle = new Float64Array(this.intervalCount * stationCount);
-    this.stationStarved = new Float64Array(this.intervalCount * stationCount);
-    this.stationBusy = new Uint8Array(stationCount);
-    this.stationPending = new Int32Array(stationCount);
-    this.stationSince = new Int32Array(stationCount);
+    const n = this.intervalCount;
+    this.deliveries = new Float64Array(n);
+    this.releases = new Float64Array(n);
+    this.tasksInSystemArea = new Float64Array(n);
+    this.robotTicks = new Float64Array(n * activityCount);
+    this.busyRobotTicks = new Float64Array(n);
+    this.parkedWhileOpenTicks = new Float64Array(n);
+    this.releasedLoadedCells = new Float64Array(n);
+    this.deliveredLoadedCells = new Float64Array(n);
+    this.stationBusy = tickCounts(n * stationCount, intervalTicks);
+    this.stationNoRobot = tickCounts(n * stationCount, intervalTicks);
+    this.stationTravelling = tickCounts(n * stationCount, intervalTicks);
+    this.stationQueue = tickCounts(n * stationCount, intervalTicks * Math.max(1, robots));
+    this.stationReleased = new Float64Array(stationCount);
+    this.stationServed = new Float64Array(stationCount);
+    this.busy = new Uint8Array(stationCount);
+    this.unassigned = new Int32Array(stationCount);
+    this.assigned = new Int32Array(stationCount);
+    this.queued = new Int32Array(stationCount);
+    this.since = new Int32Array(stationCount);
   }
 
   /** Length in ticks of interval i (the last may be partial). */
@@ -83,12 +144,17 @@ export class MetricsRecorder {
     return Math.min(this.intervalTicks, this.endTick - i * this.intervalTicks);
   }
 
+  /** Lead time in ticks of every task delivered before the end, in delivery order (a view, not a copy). */
+  get leadTicks(): Int32Array {
+    return this.leadBuffer.subarray(0, this.leadCount);
+  }
+
   private intervalOf(tick: number): number {
     return Math.min(this.intervalCount - 1, Math.floor(tick / this.intervalTicks));
   }
 
   /** Adds `weight` per tick over [from, to) into `target[interval * stride + offset]`. */
-  private spread(target: Float64Array, stride: number, offset: number, from: number, to: number, weight: number): void {
+  private spread(target: TickCounts, stride: number, offset: number, from: number, to: number, weight: number): void {
     if (weight === 0) return;
     const end = Math.min(to, this.endTick);
     let t = from;
@@ -102,39 +168,57 @@ export class MetricsRecorder {
 
   // Robot activity -----------------------------------------------------------------
 
-  /** One executed step [tick-1, tick): counts per activity. Hot path: called every motion tick. */
-  addStep(tick: number, loaded: number, empty: number, handling: number, waiting: number, parked: number): void {
-    const base = this.intervalOf(tick - 1) * activityCount;
+  /**
+   * One executed step [tick-1, tick): counts per activity, robots holding a task, robots
+   * parked while tasks were open. Hot path: called every motion tick.
+   */
+  addStep(tick: number, loaded: number, empty: number, handling: number, waiting: number, parked: number, busy: number, parkedWhileOpen: number): void {
+    const i = this.intervalOf(tick - 1);
+    const base = i * activityCount;
     const r = this.robotTicks;
     r[base] += loaded;
     r[base + 1] += empty;
     r[base + 2] += handling;
     r[base + 3] += waiting;
     r[base + 4] += parked;
+    this.busyRobotTicks[i] += busy;
+    this.parkedWhileOpenTicks[i] += parkedWhileOpen;
   }
 
-  /** Robots standing still over [from, to) with the given activity counts. */
-  addStill(from: number, to: number, handling: number, waiting: number, parked: number): void {
+  /** Robots standing still over [from, to) with the given counts. */
+  addStill(from: number, to: number, handling: number, waiting: number, parked: number, busy: number, parkedWhileOpen: number): void {
     this.spread(this.robotTicks, activityCount, RobotActivity.Handling, from, to, handling);
     this.spread(this.robotTicks, activityCount, RobotActivity.Waiting, from, to, waiting);
     this.spread(this.robotTicks, activityCount, RobotActivity.Parked, from, to, parked);
+    this.spread(this.busyRobotTicks, 1, 0, from, to, busy);
+    this.spread(this.parkedWhileOpenTicks, 1, 0, from, to, parkedWhileOpen);
   }
 
   // Tasks --------------------------------------------------------------------------
 
-  released(tick: number): void {
+  released(tick: number, loadedCells = 0): void {
     this.flushInSystem(tick);
     this.inSystem++;
-    if (tick < this.endTick) this.releases[this.intervalOf(tick)]++;
+    if (tick < this.endTick) {
+      const i = this.intervalOf(tick);
+      this.releases[i]++;
+      this.releasedLoadedCells[i] += loadedCells;
+    }
   }
 
-  delivered(tick: number, releaseTick: number): void {
+  delivered(tick: number, releaseTick: number, loadedCells = 0): void {
     this.flushInSystem(tick);
     this.inSystem--;
     if (tick >= this.endTick) return;
-    this.deliveries[this.intervalOf(tick)]++;
-    this.deliveryTicks.push(tick);
-    this.leadTicks.push(tick - releaseTick);
+    const i = this.intervalOf(tick);
+    this.deliveries[i]++;
+    this.deliveredLoadedCells[i] += loadedCells;
+    if (this.leadCount === this.leadBuffer.length) {
+      const grown = new Int32Array(this.leadBuffer.length * 2);
+      grown.set(this.leadBuffer);
+      this.leadBuffer = grown;
+    }
+    this.leadBuffer[this.leadCount++] = tick - releaseTick;
   }
 
   private flushInSystem(tick: number): void {
@@ -146,21 +230,52 @@ export class MetricsRecorder {
 
   stationBusyChange(station: number, tick: number, busy: boolean): void {
     this.flushStation(station, tick);
-    this.stationBusy[station] = busy ? 1 : 0;
+    this.busy[station] = busy ? 1 : 0;
+    if (!busy) this.stationServed[station]++;
   }
 
-  stationPendingChange(station: number, tick: number, delta: number): void {
+  /**
+   * Work for a station where work queues: `unassigned` counts waiting tasks no robot holds,
+   * `assigned` those whose robot is on its way (deltas).
+   */
+  stationWorkChange(station: number, tick: number, unassigned: number, assigned: number): void {
     this.flushStation(station, tick);
-    this.stationPending[station] += delta;
+    this.unassigned[station] += unassigned;
+    this.assigned[station] += assigned;
+  }
+
+  /** Counts a released task with work at the station (whole run). */
+  stationTaskReleased(station: number): void {
+    this.stationReleased[station]++;
+  }
+
+  /** Robots queued behind the robot in service at the station, from now on. */
+  stationQueueSet(station: number, tick: number, robots: number): void {
+    if (this.queued[station] === robots) return;
+    this.flushStation(station, tick);
+    this.queued[station] = robots;
   }
 
   private flushStation(station: number, tick: number): void {
-    const since = this.stationSince[station];
-    if (tick > since && !this.stationBusy[station]) {
-      this.spread(this.stationIdle, this.stationCount, station, since, tick, 1);
-      if (this.stationPending[station] > 0) this.spread(this.stationStarved, this.stationCount, station, since, tick, 1);
+    const since = this.since[station];
+    if (tick > since) {
+      const stride = this.stationCount;
+      if (this.busy[station]) this.spread(this.stationBusy, stride, station, since, tick, 1);
+      else if (this.assigned[station] > 0) this.spread(this.stationTravelling, stride, station, since, tick, 1);
+      else if (this.unassigned[station] > 0) this.spread(this.stationNoRobot, stride, station, since, tick, 1);
+      this.spread(this.stationQueue, stride, station, since, tick, this.queued[station]);
     }
-    this.stationSince[station] = tick;
+    this.since[station] = tick;
+  }
+
+  /**
+   * The run ended before the planned end (a trace whose last task was delivered): later
+   * intervals are dropped from `intervalCount`; the arrays keep their length (zeros).
+   */
+  truncate(endTick: number): void {
+    if (endTick >= this.endTick) return;
+    this.endTick = endTick;
+    this.intervalCount = Math.ceil(endTick / this.intervalTicks);
   }
 
   /** Closes every lazy accumulator at the end of the run. */

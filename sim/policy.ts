@@ -15,6 +15,9 @@
  * Handling convention: a robot that reaches its pickup (drop, return) cell at tick t starts
  * handling at once and stays on the cell through tick t + h, h the task's handling ticks;
  * it may move again from t + h to t + h + 1. Planned policies include these waits.
+ *
+ * Task ids are slots that the world reuses after a task is delivered (sim/world.ts): do not
+ * keep a task id past its delivery.
  */
 import type { z } from 'zod';
 import type { Layout } from './layout.ts';
@@ -23,6 +26,14 @@ import type { World } from './world.ts';
 
 export interface Policy {
   step(tick: number, moves: Int32Array): number;
+  /**
+   * Optional channel for the deadlock detector (sim/deadlock-detector.ts): one entry per
+   * robot. The engine fills it with -1 before every step; for a robot that holds a task and
+   * stays although it wanted to move, the policy may write the cell it wanted (its own cell:
+   * it chose to stay). Entries left at -1 are inferred from the distance table of the robot's
+   * goal, so a policy need not fill it.
+   */
+  readonly wantedCells?: Int32Array;
   /** The engine moved robot r off the floor to a parking cell (an operator clearing a deadlock). */
   onRelocated?(robot: number, tick: number): void;
   /** Policy-specific counters for the run summary (e.g. searches, expansions). */

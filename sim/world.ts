@@ -2,7 +2,7 @@
  * The state policies read: robots (cell, task, phase), tasks (endpoints, handling ticks,
  * state) and the open-task list. Policies treat it as read-only and change it only through
  * `assign` and `unassign`; the engine moves robots and advances phases. Parallel typed
- * arrays throughout; task arrays grow by doubling.
+ * arrays throughout; task arrays grow by doubling and their slots are reused after delivery.
  */
 import type { Layout } from './layout.ts';
 import { RunError } from './errors.ts';
@@ -26,8 +26,12 @@ export const TaskState = {
   Held: 1,
   Assigned: 2,
   PickedUp: 3,
+  /** Drop handling done; a round-trip task stays live while its robot returns the shelf. */
   Delivered: 4,
+  /** An unused slot: the task was retired (delivered and, for round trips, its shelf returned). */
+  Free: 5,
 } as const;
+const stateCount = 6;
 
 export function isHandling(phase: number): boolean {
   return phase === Phase.HandlingPickup || phase === Phase.HandlingDrop || phase === Phase.HandlingReturn;
@@ -38,6 +42,22 @@ export function isLoaded(phase: number): boolean {
   return phase >= Phase.ToDrop;
 }
 
+/** Tasks counted by the state each live slot holds, plus the tasks already retired. */
+export interface TaskStateCounts {
+  open: number;
+  held: number;
+  assigned: number;
+  pickedUp: number;
+  /** Delivered tasks still live (round trips returning their shelf) plus retired ones. */
+  delivered: number;
+}
+
+/**
+ * Task ids are slots. A task's slot is freed when it is retired (delivered, and for a round
+ * trip its shelf set down again) and reused by a later release, so memory follows the tasks
+ * in the system, not the length of the run. Policies must not keep a task id past its
+ * delivery; `taskSerial` numbers releases uniquely (release order) for tie-breaks.
+ */
 export class World {
   readonly robotCount: number;
   readonly robotCell: Int32Array;
@@ -48,8 +68,11 @@ export class World {
   /** Robot standing on each cell, or -1. */
   readonly occupant: Int32Array;
 
+  /** Slots in use or freed (the high-water mark of live tasks); ids are below it. */
   taskCount = 0;
   taskRelease = new Int32Array(256);
+  /** Release sequence number, unique over the run (slots are reused, serials are not). */
+  taskSerial = new Float64Array(256);
   taskPickup = new Int32Array(256);
   taskDrop = new Int32Array(256);
   /** Cell the shelf returns to (round trips), or -1. */
@@ -67,12 +90,22 @@ export class World {
   readonly openTasks: number[] = [];
   /** Bumped whenever the open list or a robot's task changes; policies use it to skip work. */
   version = 0;
-  /** Called by assign() so the engine can react (saturated demand refills, round trips). */
+  /** Called by assign() so the engine can react (saturated demand refills, station counts). */
   onAssign: ((task: number, robot: number) => void) | null = null;
+  /** Called by unassign() after the task went back to the open list. */
+  onUnassign: ((task: number, robot: number) => void) | null = null;
   /** Called by assign() when the robot already stands on the pickup. */
   onArrive: ((robot: number) => void) | null = null;
 
   currentTick = 0;
+
+  /** Live tasks per TaskState, kept at every transition (the engine recounts them from the slots). */
+  readonly stateCounts = new Float64Array(stateCount);
+  /** Tasks whose slot was freed after delivery. */
+  retired = 0;
+  private released = 0;
+  private freeSlots = new Int32Array(64);
+  private freeCount = 0;
 
   constructor(
     readonly layout: Layout,
@@ -106,12 +139,12 @@ export class World {
     if (this.robotPhase[robot] !== Phase.Idle || this.robotTask[robot] !== -1) {
       throw new RunError(`policy assigned task ${task} to robot ${robot}, which is not idle`);
     }
-    if (this.taskState[task] !== TaskState.Open) {
+    if (task < 0 || task >= this.taskCount || this.taskState[task] !== TaskState.Open) {
       throw new RunError(`policy assigned task ${task}, which is not open`);
     }
     const index = this.openTasks.indexOf(task);
     if (index >= 0) this.openTasks.splice(index, 1);
-    this.taskState[task] = TaskState.Assigned;
+    this.setState(task, TaskState.Assigned);
     this.taskRobot[task] = robot;
     this.taskAssignedTick[task] = this.currentTick;
     this.robotTask[robot] = task;
@@ -127,20 +160,28 @@ export class World {
     if (task < 0 || this.robotPhase[robot] !== Phase.ToPickup) {
       throw new RunError(`policy unassigned robot ${robot}, which holds no task before pickup`);
     }
-    this.taskState[task] = TaskState.Open;
+    this.setState(task, TaskState.Open);
     this.taskRobot[task] = -1;
     this.robotTask[robot] = -1;
     this.robotPhase[robot] = Phase.Idle;
     insertByRelease(this, task);
     this.version++;
+    this.onUnassign?.(task, robot);
     return task;
   }
 
-  /** Appends a released task; returns its id. */
+  /** Appends a released task in a free slot; returns its id. */
   addTask(releaseTick: number, pickup: number, drop: number, returnCell: number, pickupTicks: number, dropTicks: number, returnTicks: number, state: number): number {
-    if (this.taskCount === this.taskRelease.length) this.growTasks();
-    const id = this.taskCount++;
+    let id: number;
+    if (this.freeCount > 0) {
+      id = this.freeSlots[--this.freeCount];
+      this.stateCounts[TaskState.Free]--;
+    } else {
+      if (this.taskCount === this.taskRelease.length) this.growTasks();
+      id = this.taskCount++;
+    }
     this.taskRelease[id] = releaseTick;
+    this.taskSerial[id] = this.released++;
     this.taskPickup[id] = pickup;
     this.taskDrop[id] = drop;
     this.taskReturn[id] = returnCell;
@@ -148,6 +189,7 @@ export class World {
     this.taskDropTicks[id] = dropTicks;
     this.taskReturnTicks[id] = returnTicks;
     this.taskState[id] = state;
+    this.stateCounts[state]++;
     this.taskRobot[id] = -1;
     this.taskAssignedTick[id] = -1;
     this.taskPickedTick[id] = -1;
@@ -159,6 +201,66 @@ export class World {
     return id;
   }
 
+  /** Engine: pickup handling done. */
+  markPickedUp(task: number, tick: number): void {
+    this.setState(task, TaskState.PickedUp);
+    this.taskPickedTick[task] = tick;
+  }
+
+  /** Engine: drop handling done. */
+  markDelivered(task: number, tick: number): void {
+    this.setState(task, TaskState.Delivered);
+    this.taskDeliveredTick[task] = tick;
+  }
+
+  /** Engine: a held task's shelf is back; the task joins the open list in release order. */
+  releaseHeld(task: number): void {
+    this.setState(task, TaskState.Open);
+    insertByRelease(this, task);
+    this.version++;
+  }
+
+  /** Engine: a delivered task leaves the world; its slot is reused by a later release. */
+  retire(task: number): void {
+    if (this.taskState[task] !== TaskState.Delivered) throw new RunError(`task ${task} retired in state ${this.taskState[task]}, expected delivered`);
+    this.setState(task, TaskState.Free);
+    this.retired++;
+    this.taskRobot[task] = -1;
+    if (this.freeCount === this.freeSlots.length) {
+      const grown = new Int32Array(this.freeSlots.length * 2);
+      grown.set(this.freeSlots);
+      this.freeSlots = grown;
+    }
+    this.freeSlots[this.freeCount++] = task;
+  }
+
+  /** Live tasks (released and not retired). */
+  get liveTasks(): number {
+    return this.taskCount - this.freeCount;
+  }
+
+  /**
+   * Tasks counted by the state stored in every slot (a full scan, O(slots)), plus retired
+   * ones. Independent of `stateCounts`: the engine compares the two.
+   */
+  countTasksByState(): TaskStateCounts {
+    const counts = new Float64Array(stateCount);
+    for (let id = 0; id < this.taskCount; id++) counts[this.taskState[id]]++;
+    return {
+      open: counts[TaskState.Open],
+      held: counts[TaskState.Held],
+      assigned: counts[TaskState.Assigned],
+      pickedUp: counts[TaskState.PickedUp],
+      delivered: counts[TaskState.Delivered] + this.retired,
+    };
+  }
+
+  private setState(task: number, state: number): void {
+    this.stateCounts[this.taskState[task]]--;
+    this.taskState[task] = state;
+    this.stateCounts[state]++;
+  }
+
   private growTasks(): void {
     const n = this.taskRelease.length * 2;
     const i32 = (a: Int32Array) => {
@@ -167,6 +269,9 @@ export class World {
       return b;
     };
     this.taskRelease = i32(this.taskRelease);
+    const serial = new Float64Array(n);
+    serial.set(this.taskSerial);
+    this.taskSerial = serial;
     this.taskPickup = i32(this.taskPickup);
     this.taskDrop = i32(this.taskDrop);
     this.taskReturn = i32(this.taskReturn);
@@ -183,10 +288,11 @@ export class World {
   }
 }
 
-/** Puts a task back into the open list at its release-order position. */
+/** Puts a task back into the open list at its release-order position (release serial). */
 export function insertByRelease(world: World, task: number): void {
   const open = world.openTasks;
+  const serial = world.taskSerial;
   let i = open.length;
-  while (i > 0 && (world.taskRelease[open[i - 1]] > world.taskRelease[task] || (world.taskRelease[open[i - 1]] === world.taskRelease[task] && open[i - 1] > task))) i--;
+  while (i > 0 && serial[open[i - 1]] > serial[task]) i--;
   open.splice(i, 0, task);
 }

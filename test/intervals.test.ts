@@ -18,9 +18,10 @@ function referenceInterval(values: number[], confidence = 0.95): { low: number; 
 }
 
 describe('intervals stay within what the quantity can take', () => {
-  // greedy-reactive, 16 robots at 900 tasks/h: it jams early in some replications and not
-  // in others, so the plain t intervals of small fractions and of throughput reach below 0.
-  const scenario = loadScenarioFile('scenarios/demo-sortation.yaml', { policy: 'greedy-reactive', robots: 16, tasksPerHour: 900, hours: 1, replications: 3, warmup: 0 });
+  // greedy-reactive, 10 robots at 900 tasks/h, seed 4: it jams early in some replications
+  // and not in others, so the plain t intervals of small fractions and of throughput reach
+  // below 0 (the precondition below checks that this still holds).
+  const scenario = loadScenarioFile('scenarios/demo-sortation.yaml', { policy: 'greedy-reactive', robots: 10, tasksPerHour: 900, hours: 1, replications: 3, warmup: 0, seed: 4 });
   const { summary, perReplication } = summarize(scenario, runReplications(scenario), 0);
 
   it('fractions are clipped to [0, 1] and rates to >= 0, keeping the mean and the t half-width', () => {

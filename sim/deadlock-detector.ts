@@ -1,0 +1,519 @@
+/**
+ * Deadlocks as closed wait-for sets, livelocks, fleet gridlock, and queue time at stations.
+ *
+ * Wait-for graph (Holt, "Some Deadlock Properties of Computer Systems", ACM Computing
+ * Surveys 4(3), 1972; Coffman, Elphick & Shoshani, "System Deadlocks", ACM Computing Surveys
+ * 3(2), 1971): per tick, a robot that holds a goal, stands still and needs a cell held by
+ * another robot waits on that robot. The engine does not know which cell a policy wanted
+ * (policies write only where each robot will be), so the wish is read from the policy's
+ * optional `wantedCells` channel (sim/policy.ts) when it fills it, and otherwise inferred:
+ * the robot wants any neighbour one step closer to its goal on the breadth-first distance
+ * table, and waits on robots only when every such neighbour is taken at the next tick (if
+ * one is free, the robot waits on its policy, not on a robot). A robot may wait on up to
+ * four robots and can go on when any one of them moves (the OR model of the wait-for graph:
+ * a deadlock is a knot, not merely a cycle; Holt 1972).
+ *
+ * Each tick every robot is one of: in service (handling), moving, free (standing with a way
+ * open), blocked (waiting on robots), or idle and still (no task, not moving: it goes on
+ * only when its policy moves it). Sinks through which a blocked robot can go on are robots
+ * in service, moving or free. Blocked robots that reach such a sink through the graph are in
+ * a queue: behind a robot in service at a station it is queue time at that station (the
+ * station where the head of the chain is served), otherwise it is traffic. Blocked robots
+ * that reach no sink wait only on each other and on idle robots that stand still: a closed
+ * set. When one of them has stood in a closed set for `deadlockTicks`, the set is a
+ * deadlock episode; its members are the closed set's robots, idle blockers included, and
+ * robots that later join it by waiting on a member.
+ *
+ * Livelock: a robot holding a goal that made no progress (no phase change, no new closest
+ * distance to its goal) for `deadlockTicks` while it kept moving (it moved in at least a
+ * quarter of the ticks since its last progress), stands in no closed set, and whose goal
+ * served no robot in that time. A robot kept circling near a goal that serves others (a
+ * reactive policy pushing a robot about at a busy induct) is queueing for that station,
+ * not livelocked. Neighbouring livelocked robots form one episode.
+ *
+ * Gridlock: the fleet delivers nothing for `deadlockTicks` while released tasks are open
+ * and some robot has no task. Its members are the robots without a task when it is found.
+ *
+ * Robot-ticks lost: for deadlock and livelock members holding a task, from the tick they
+ * stalled (stood in the closed set; last progress for a livelock) until they progress again
+ * or are cleared; idle members lose nothing (they had no work). For a gridlock, its
+ * members' ticks from the fleet's stall to its end.
+ *
+ * Cost: O(robots) per evaluated tick (up to four neighbour checks per standing robot, a
+ * reverse breadth-first pass over the wait edges), typed arrays sized once.
+ */
+import type { DistanceTables } from './distance-table.ts';
+import { unreachable } from './distance-table.ts';
+import type { Layout } from './layout.ts';
+import type { DeadlockEpisode, EpisodeKind } from './metrics.ts';
+import { Phase, isHandling, type World } from './world.ts';
+
+/** What each robot did over the evaluated step. */
+export const WaitStatus = {
+  Handling: 0,
+  Moving: 1,
+  /** Holds a goal, stands still although a cell it wants is free (it waits on its policy). */
+  Free: 2,
+  /** Holds a goal, stands still, and every cell it wants is taken. */
+  Blocked: 3,
+  /** No task and not moving. */
+  IdleStill: 4,
+} as const;
+
+export interface DetectorEpisode extends DeadlockEpisode {
+  /** Robots currently in the episode. */
+  active: Set<number>;
+}
+
+export interface EvaluationResult {
+  /** Episodes found at this tick that the modelled operator may clear (deadlocks and livelocks). */
+  clearable: number[];
+}
+
+export class DeadlockDetector {
+  readonly status: Uint8Array;
+  /** Station (index into the station list) whose queue the robot stands in, or -1. */
+  readonly queueStation: Int32Array;
+  readonly episodes: DetectorEpisode[] = [];
+
+  private readonly robots: number;
+  private readonly lastProgress: Int32Array;
+  private readonly bestDistance: Int32Array;
+  private readonly goalSeen: Int32Array;
+  private readonly lastCell: Int32Array;
+  private readonly movesSinceProgress: Int32Array;
+  private readonly stuckSince: Int32Array;
+  private readonly episodeOf: Int32Array;
+  private readonly memberSince: Int32Array;
+  /** Wait edges: up to four robots per blocked robot. */
+  private readonly waitsOn: Int32Array;
+  private readonly waitCount: Uint8Array;
+  private readonly predecessorStart: Int32Array;
+  private readonly predecessors: Int32Array;
+  private readonly reached: Uint8Array;
+  private readonly bfs: Int32Array;
+  private readonly nextOccupant: Int32Array;
+  private readonly nextStamp: Int32Array;
+  private stamp = 0;
+  private readonly queuedNow: Int32Array;
+  private touchedStations: number[] = [];
+  /** Per cell: the last tick a robot was in service there (handling ended or still going on). */
+  private readonly lastServed: Int32Array;
+  private gridlockSince = -1;
+  private gridlockEpisode = -1;
+
+  constructor(
+    private readonly layout: Layout,
+    private readonly distances: DistanceTables,
+    robots: number,
+    private readonly deadlockTicks: number,
+    /** Station index per cell, or -1. */
+    private readonly stationOf: Int32Array,
+    stationCount: number,
+    /** Receives the number of robots queued at a station whenever it may have changed. */
+    private readonly onQueue: (station: number, tick: number, robots: number) => void = () => {},
+  ) {
+    this.robots = robots;
+    this.status = new Uint8Array(robots);
+    this.queueStation = new Int32Array(robots).fill(-1);
+    this.lastProgress = new Int32Array(robots);
+    this.bestDistance = new Int32Array(robots).fill(unreachable);
+    this.goalSeen = new Int32Array(robots).fill(-2);
+    this.lastCell = new Int32Array(robots).fill(-1);
+    this.movesSinceProgress = new Int32Array(robots);
+    this.stuckSince = new Int32Array(robots).fill(-1);
+    this.episodeOf = new Int32Array(robots).fill(-1);
+    this.memberSince = new Int32Array(robots);
+    this.waitsOn = new Int32Array(robots * 4);
+    this.waitCount = new Uint8Array(robots);
+    this.predecessorStart = new Int32Array(robots + 1);
+    this.predecessors = new Int32Array(robots * 4);
+    this.reached = new Uint8Array(robots);
+    this.bfs = new Int32Array(robots);
+    this.nextOccupant = new Int32Array(layout.cellCount);
+    this.nextStamp = new Int32Array(layout.cellCount);
+    this.queuedNow = new Int32Array(stationCount);
+    this.lastServed = new Int32Array(layout.cellCount).fill(-1);
+  }
+
+  /** The engine: a handling at `cell` ended at `tick`. */
+  served(cell: number, tick: number): void {
+    this.lastServed[cell] = tick;
+  }
+
+  /** The episode robot r is in (deadlock or livelock), or -1. */
+  episodeOfRobot(robot: number): number {
+    return this.episodeOf[robot];
+  }
+
+  /** The operator moved the robot: it leaves its episode, cleared, and starts afresh. */
+  relocated(robot: number, tick: number): void {
+    if (this.episodeOf[robot] >= 0) this.leave(robot, tick, true);
+    this.resetProgress(robot, tick);
+    this.stuckSince[robot] = -1;
+  }
+
+  /**
+   * Evaluates the step [tick, tick + 1): `world` holds positions and phases at `tick`,
+   * `next[r]` the cell robot r occupies at tick + 1 (its current cell when it stays or is
+   * handling). `wanted[r]`, when the policy fills it, is the cell r wanted to enter next
+   * (its own cell: it wants to stay; -1: no wish given, infer it).
+   */
+  evaluate(tick: number, world: World, next: Int32Array, wanted: Int32Array | null, delivered: boolean): EvaluationResult {
+    const robots = this.robots;
+    const cells = world.robotCell;
+    const status = this.status;
+    const neighbors = this.layout.neighbors;
+
+    // Progress and motion since the last evaluation.
+    for (let r = 0; r < robots; r++) {
+      const cell = cells[r];
+      if (this.lastCell[r] >= 0 && this.lastCell[r] !== cell) this.movesSinceProgress[r]++;
+      this.lastCell[r] = cell;
+      const goal = world.goalOf(r);
+      if (goal !== this.goalSeen[r]) {
+        this.goalSeen[r] = goal;
+        this.progress(r, tick);
+        if (goal >= 0) this.bestDistance[r] = this.distances.to(goal)[cell];
+        continue;
+      }
+      if (goal < 0) {
+        // No goal (idle or handling): nothing to progress towards; keep the clock fresh.
+        this.lastProgress[r] = tick;
+        this.movesSinceProgress[r] = 0;
+        continue;
+      }
+      const d = this.distances.to(goal)[cell];
+      if (d < this.bestDistance[r]) {
+        this.bestDistance[r] = d;
+        this.progress(r, tick);
+      }
+    }
+
+    // Cells taken at tick + 1.
+    const stamp = ++this.stamp;
+    for (let r = 0; r < robots; r++) {
+      const c = isHandling(world.robotPhase[r]) ? cells[r] : next[r];
+      this.nextStamp[c] = stamp;
+      this.nextOccupant[c] = r;
+    }
+    const takenBy = (c: number): number => (this.nextStamp[c] === stamp ? this.nextOccupant[c] : -1);
+
+    // Status and wait edges.
+    for (let r = 0; r < robots; r++) {
+      this.waitCount[r] = 0;
+      const phase = world.robotPhase[r];
+      const cell = cells[r];
+      if (isHandling(phase)) {
+        status[r] = WaitStatus.Handling;
+        continue;
+      }
+      if (next[r] !== cell) {
+        status[r] = WaitStatus.Moving;
+        continue;
+      }
+      if (phase === Phase.Idle) {
+        status[r] = WaitStatus.IdleStill;
+        continue;
+      }
+      const goal = world.goalOf(r);
+      const wish = wanted === null ? -1 : wanted[r];
+      if (wish >= 0) {
+        const owner = wish === cell ? -1 : takenBy(wish);
+        if (owner < 0 || owner === r) status[r] = WaitStatus.Free;
+        else {
+          status[r] = WaitStatus.Blocked;
+          this.waitsOn[r * 4] = owner;
+          this.waitCount[r] = 1;
+        }
+        continue;
+      }
+      const table = goal >= 0 ? this.distances.to(goal) : null;
+      const here = table === null ? unreachable : table[cell];
+      let closer = 0;
+      let free = false;
+      for (let d = 0; d < 4 && !free; d++) {
+        const n = neighbors[cell * 4 + d];
+        if (n < 0 || table === null || table[n] !== here - 1) continue;
+        closer++;
+        const owner = takenBy(n);
+        if (owner < 0 || owner === r) {
+          free = true;
+          break;
+        }
+        let seen = false;
+        for (let k = 0; k < this.waitCount[r]; k++) if (this.waitsOn[r * 4 + k] === owner) seen = true;
+        if (!seen) this.waitsOn[r * 4 + this.waitCount[r]++] = owner;
+      }
+      if (free || closer === 0 || here >= unreachable) {
+        status[r] = WaitStatus.Free;
+        this.waitCount[r] = 0;
+      } else {
+        status[r] = WaitStatus.Blocked;
+      }
+    }
+
+    // Reverse edges (compressed rows) for the backward search from the sinks.
+    const start = this.predecessorStart;
+    start.fill(0);
+    for (let r = 0; r < robots; r++) for (let k = 0; k < this.waitCount[r]; k++) start[this.waitsOn[r * 4 + k] + 1]++;
+    for (let r = 0; r < robots; r++) start[r + 1] += start[r];
+    const fill = this.bfs;
+    for (let r = 0; r < robots; r++) fill[r] = start[r];
+    for (let r = 0; r < robots; r++) for (let k = 0; k < this.waitCount[r]; k++) this.predecessors[fill[this.waitsOn[r * 4 + k]]++] = r;
+
+    // Blocked robots that reach a robot in service queue at its station (first pass), those
+    // that reach a moving or free robot are in traffic (second pass); the rest are stuck.
+    const reached = this.reached;
+    reached.fill(0);
+    const queueStation = this.queueStation;
+    queueStation.fill(-1);
+    const queue = this.bfs;
+    for (let pass = 0; pass < 2; pass++) {
+      let head = 0;
+      let tail = 0;
+      for (let r = 0; r < robots; r++) {
+        const s = status[r];
+        const sink = pass === 0 ? s === WaitStatus.Handling : s === WaitStatus.Moving || s === WaitStatus.Free;
+        if (!sink) continue;
+        reached[r] = 1;
+        queueStation[r] = pass === 0 ? this.stationOf[cells[r]] : -1;
+        queue[tail++] = r;
+      }
+      while (head < tail) {
+        const x = queue[head++];
+        for (let i = start[x]; i < start[x + 1]; i++) {
+          const p = this.predecessors[i];
+          if (reached[p] || status[p] !== WaitStatus.Blocked) continue;
+          reached[p] = 1;
+          queueStation[p] = queueStation[x];
+          queue[tail++] = p;
+        }
+      }
+    }
+
+    // Queue time per station (robots queued behind the robot in service there).
+    for (const s of this.touchedStations) this.queuedNow[s] = 0;
+    const touched: number[] = [];
+    for (let r = 0; r < robots; r++) {
+      if (status[r] !== WaitStatus.Blocked || !reached[r]) continue;
+      const s = queueStation[r];
+      if (s < 0) continue;
+      if (this.queuedNow[s] === 0) touched.push(s);
+      this.queuedNow[s]++;
+    }
+    for (const s of this.touchedStations) if (this.queuedNow[s] === 0) this.onQueue(s, tick, 0);
+    for (const s of touched) this.onQueue(s, tick, this.queuedNow[s]);
+    this.touchedStations = touched;
+    // Handling robots are not queued; only blocked robots keep their station mark.
+    for (let r = 0; r < robots; r++) if (status[r] !== WaitStatus.Blocked) queueStation[r] = -1;
+
+    // Stuck robots: blocked and reaching no sink.
+    for (let r = 0; r < robots; r++) {
+      const stuck = status[r] === WaitStatus.Blocked && !reached[r];
+      if (!stuck) this.stuckSince[r] = -1;
+      else if (this.stuckSince[r] < 0) this.stuckSince[r] = tick;
+    }
+
+    const clearable: number[] = [];
+    this.membersLeave(tick, world);
+    this.findDeadlocks(tick, world, clearable);
+    this.findLivelocks(tick, world, clearable);
+    this.findGridlock(tick, world, delivered);
+    return { clearable };
+  }
+
+  /** Earliest tick at which a new episode could be found if nothing moves, or Infinity. */
+  nextCheckTick(world: World): number {
+    let earliest = Infinity;
+    for (let r = 0; r < this.robots; r++) {
+      if (this.episodeOf[r] >= 0) continue;
+      if (this.stuckSince[r] >= 0) earliest = Math.min(earliest, this.stuckSince[r] + this.deadlockTicks);
+      else if (world.goalOf(r) >= 0) earliest = Math.min(earliest, this.lastProgress[r] + this.deadlockTicks);
+    }
+    if (this.gridlockSince >= 0 && this.gridlockEpisode < 0) earliest = Math.min(earliest, this.gridlockSince + this.deadlockTicks);
+    return earliest;
+  }
+
+  /** Robots currently in an episode. */
+  activeMembers(episode: number): number[] {
+    return [...this.episodes[episode].active].sort((a, b) => a - b);
+  }
+
+  /** Closes every open episode at the end of the run; returns them without the bookkeeping. */
+  finish(endTick: number): DeadlockEpisode[] {
+    for (let r = 0; r < this.robots; r++) if (this.episodeOf[r] >= 0) this.leave(r, endTick, false);
+    if (this.gridlockEpisode >= 0) this.endGridlock(endTick);
+    return this.episodes.map(({ active: _active, ...plain }) => ({ ...plain, endTick: plain.endTick < 0 ? endTick : plain.endTick }));
+  }
+
+  // Internals ---------------------------------------------------------------------------
+
+  private resetProgress(robot: number, tick: number): void {
+    this.lastProgress[robot] = tick;
+    this.movesSinceProgress[robot] = 0;
+    this.bestDistance[robot] = unreachable;
+    this.goalSeen[robot] = -2;
+  }
+
+  private progress(robot: number, tick: number): void {
+    this.lastProgress[robot] = tick;
+    this.movesSinceProgress[robot] = 0;
+    if (this.episodeOf[robot] >= 0) this.leave(robot, tick, false);
+  }
+
+  private leave(robot: number, tick: number, cleared: boolean): void {
+    const episode = this.episodes[this.episodeOf[robot]];
+    this.episodeOf[robot] = -1;
+    episode.active.delete(robot);
+    if (this.memberSince[robot] >= 0) episode.lostTicks += tick - this.memberSince[robot];
+    if (cleared) episode.cleared = true;
+    // Idle blockers stay only as long as some member holding a task does.
+    let holders = 0;
+    for (const r of episode.active) if (this.memberSince[r] >= 0) holders++;
+    if (holders === 0) {
+      for (const r of episode.active) this.episodeOf[r] = -1;
+      episode.active.clear();
+      episode.endTick = tick;
+    }
+  }
+
+  private join(episodeId: number, robot: number, since: number): void {
+    const episode = this.episodes[episodeId];
+    this.episodeOf[robot] = episodeId;
+    this.memberSince[robot] = since;
+    episode.active.add(robot);
+    episode.members.push(robot);
+    episode.robots++;
+    if (since >= 0) episode.stallTick = Math.min(episode.stallTick, since);
+  }
+
+  private open(kind: EpisodeKind, tick: number, stallTick: number): number {
+    this.episodes.push({ kind, stallTick, detectTick: tick, endTick: -1, robots: 0, members: [], lostTicks: 0, cleared: false, active: new Set() });
+    return this.episodes.length - 1;
+  }
+
+  /** Idle members that moved or got a task leave their deadlock. */
+  private membersLeave(tick: number, world: World): void {
+    for (let r = 0; r < this.robots; r++) {
+      if (this.episodeOf[r] < 0 || this.memberSince[r] >= 0) continue;
+      if (this.status[r] !== WaitStatus.IdleStill || world.robotPhase[r] !== Phase.Idle) this.leave(r, tick, false);
+    }
+  }
+
+  private findDeadlocks(tick: number, world: World, clearable: number[]): void {
+    const robots = this.robots;
+    const stuck = (r: number) => this.stuckSince[r] >= 0;
+    // New closed sets that have stood for deadlockTicks.
+    for (let r = 0; r < robots; r++) {
+      if (!stuck(r) || this.episodeOf[r] >= 0 || tick - this.stuckSince[r] < this.deadlockTicks) continue;
+      if (this.waitsOnDeadlock(r) >= 0) continue; // joins below
+      const id = this.open('deadlock', tick, this.stuckSince[r]);
+      clearable.push(id);
+      // The closed set: stuck robots and idle blockers connected to r by wait edges.
+      const component = this.bfs;
+      let head = 0;
+      let tail = 0;
+      component[tail++] = r;
+      this.join(id, r, this.stuckSince[r]);
+      while (head < tail) {
+        const x = component[head++];
+        for (let k = 0; k < this.waitCount[x]; k++) {
+          const y = this.waitsOn[x * 4 + k];
+          if (this.episodeOf[y] >= 0) continue;
+          if (stuck(y)) this.join(id, y, this.stuckSince[y]);
+          else if (this.status[y] === WaitStatus.IdleStill && world.robotPhase[y] === Phase.Idle) this.join(id, y, -1);
+          else continue;
+          component[tail++] = y;
+        }
+        for (let i = this.predecessorStart[x]; i < this.predecessorStart[x + 1]; i++) {
+          const p = this.predecessors[i];
+          if (this.episodeOf[p] >= 0 || !stuck(p)) continue;
+          this.join(id, p, this.stuckSince[p]);
+          component[tail++] = p;
+        }
+      }
+    }
+    // Stuck robots that wait on a deadlock's member are in it too (repeat for chains).
+    let changed = true;
+    while (changed) {
+      changed = false;
+      for (let r = 0; r < robots; r++) {
+        if (!stuck(r) || this.episodeOf[r] >= 0) continue;
+        const id = this.waitsOnDeadlock(r);
+        if (id < 0) continue;
+        this.join(id, r, this.stuckSince[r]);
+        changed = true;
+      }
+    }
+  }
+
+  /** The deadlock episode of a robot r waits on, or -1. */
+  private waitsOnDeadlock(r: number): number {
+    for (let k = 0; k < this.waitCount[r]; k++) {
+      const id = this.episodeOf[this.waitsOn[r * 4 + k]];
+      if (id >= 0 && this.episodes[id].kind === 'deadlock' && this.episodes[id].endTick < 0) return id;
+    }
+    return -1;
+  }
+
+  private findLivelocks(tick: number, world: World, clearable: number[]): void {
+    const neighbors = this.layout.neighbors;
+    for (let r = 0; r < this.robots; r++) {
+      if (this.episodeOf[r] >= 0 || this.stuckSince[r] >= 0 || world.goalOf(r) < 0) continue;
+      const since = this.lastProgress[r];
+      const elapsed = tick - since;
+      if (elapsed < this.deadlockTicks || this.movesSinceProgress[r] * 4 < elapsed) continue;
+      // A goal that served a robot since (or serves one now) is a busy station, not a livelock.
+      const goal = world.goalOf(r);
+      const atGoal = world.occupant[goal];
+      if (this.lastServed[goal] >= since || (atGoal >= 0 && isHandling(world.robotPhase[atGoal]))) continue;
+      // Join a neighbouring livelock, else start one.
+      let id = -1;
+      const cell = world.robotCell[r];
+      for (let d = 0; d < 4 && id < 0; d++) {
+        const n = neighbors[cell * 4 + d];
+        if (n < 0) continue;
+        const other = world.occupant[n];
+        if (other < 0) continue;
+        const e = this.episodeOf[other];
+        if (e >= 0 && this.episodes[e].kind === 'livelock') id = e;
+      }
+      if (id < 0) {
+        id = this.open('livelock', tick, since);
+        clearable.push(id);
+      }
+      this.join(id, r, since);
+    }
+  }
+
+  private findGridlock(tick: number, world: World, delivered: boolean): void {
+    let idle = 0;
+    for (let r = 0; r < this.robots; r++) if (world.robotPhase[r] === Phase.Idle) idle++;
+    const condition = world.openTasks.length > 0 && idle > 0;
+    if (!condition || delivered) {
+      if (this.gridlockEpisode >= 0) this.endGridlock(tick);
+      this.gridlockSince = condition ? tick : -1;
+      return;
+    }
+    if (this.gridlockSince < 0) this.gridlockSince = tick;
+    if (this.gridlockEpisode >= 0 || tick - this.gridlockSince < this.deadlockTicks) return;
+    const id = this.open('gridlock', tick, this.gridlockSince);
+    const episode = this.episodes[id];
+    for (let r = 0; r < this.robots; r++) {
+      if (world.robotPhase[r] !== Phase.Idle) continue;
+      episode.members.push(r);
+      episode.active.add(r);
+    }
+    episode.robots = episode.members.length;
+    this.gridlockEpisode = id;
+  }
+
+  private endGridlock(tick: number): void {
+    const episode = this.episodes[this.gridlockEpisode];
+    episode.endTick = tick;
+    episode.lostTicks = episode.robots * (tick - episode.stallTick);
+    episode.active.clear();
+    this.gridlockEpisode = -1;
+  }
+}
