@@ -62,6 +62,13 @@ export function describeStability(summary: RunSummary): string {
   return `warning: UNSTABLE - the backlog grows by about ${signed(g.mean, 0)} tasks/h${range}: demand exceeds what this fleet delivers. Lead times count the ages of tasks still open, are lower bounds and have no interval`;
 }
 
+/** A trace longer than the run: how many of its tasks were never released (also written to stderr by `run`). */
+export function traceWarning(summary: RunSummary): string | null {
+  const trace = summary.trace;
+  if (trace === null || trace.notReleased === 0) return null;
+  return `warning: ${trace.notReleased} of ${trace.tasks} trace tasks fall after the run's end (${summary.hours} h) and were never released`;
+}
+
 export function renderRunTable(summary: RunSummary): string {
   const pct = Math.round(summary.confidence * 100);
   const how = summary.intervalMethod === 'replications' ? `over ${summary.replications} replications` : 'by batch means of one replication (lag-1 checked); deadlocks per replication';
@@ -146,9 +153,10 @@ export function renderRunTable(summary: RunSummary): string {
       `capacity run: saturated demand keeps ${summary.capacityPoolDepth} open tasks (robots + task endpoints); lead time and tasks in system are not measured. Loaded distance per task served ${formatNumber(served, 'seconds')} m vs released ${formatNumber(offered, 'seconds')} m`,
     );
   }
-  if (summary.trace) {
-    if (summary.trace.notReleased > 0) lines.push(`warning: ${summary.trace.notReleased} of ${summary.trace.tasks} trace tasks fall after the run's end and were never released`);
-    if (summary.trace.endedAtLastTaskSeconds !== null) lines.push(`the run ended when the trace's last task was done (${summary.trace.endedAtLastTaskSeconds.toFixed(0)} s): throughput is over that span`);
+  const unreleased = traceWarning(summary);
+  if (unreleased !== null) lines.push(unreleased);
+  if (summary.trace && summary.trace.endedAtLastTaskSeconds !== null) {
+    lines.push(`the run ended when the trace's last task was done (${summary.trace.endedAtLastTaskSeconds.toFixed(0)} s): throughput is over that span`);
   }
   lines.push(
     `speed: ${Math.round(summary.timing.agentStepsPerSecond).toLocaleString('en-US')} agent-steps/s, planning ${(summary.timing.planningShare * 100).toFixed(0)}% of ${summary.timing.wallSeconds.toFixed(1)} s`,

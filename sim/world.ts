@@ -175,6 +175,7 @@ export class World {
     let id: number;
     if (this.freeCount > 0) {
       id = this.freeSlots[--this.freeCount];
+      if (this.taskState[id] !== TaskState.Free) throw new RunError(`conservation broken: free task slot ${id} holds a task in state ${this.taskState[id]}`);
       this.stateCounts[TaskState.Free]--;
     } else {
       if (this.taskCount === this.taskRelease.length) this.growTasks();

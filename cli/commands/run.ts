@@ -4,7 +4,7 @@ import { loadScenarioFile, type ScenarioOverrides } from '../../scenarios/load.t
 import { prepareSetup } from '../../experiments/replications.ts';
 import { runReplication, type ReplicationRecord } from '../../sim/engine.ts';
 import { summarize, toJson } from '../../reports/summary.ts';
-import { renderRunTable } from '../../reports/console-table.ts';
+import { renderRunTable, traceWarning } from '../../reports/console-table.ts';
 import { replicationsCsv, stationsCsv, throughputSeriesCsv } from '../../reports/csv.ts';
 import { ensureDirectory, writeFileAtomic } from '../../reports/write-files.ts';
 import { writeReportInputs } from '../../reports/report-inputs.ts';
@@ -32,6 +32,8 @@ export async function runCommand(scenarioPath: string, json: boolean, outDirecto
   }
   const wallSeconds = (performance.now() - started) / 1000;
   const parts = summarize(scenario, records, wallSeconds);
+  const unreleased = traceWarning(parts.summary);
+  if (unreleased !== null) process.stderr.write(`${unreleased}\n`);
   const collided = records.find((r) => r.collisions > 0 || r.illegalSteps > 0);
   if (json) process.stdout.write(`${toJson(parts.summary)}\n`);
   else process.stdout.write(`${renderRunTable(parts.summary)}\n`);
