@@ -1,13 +1,16 @@
 /**
- * `npm run bench`: engine and policy throughput in agent-steps per wall second (one robot
- * advanced by one tick = one agent-step), the planning share of wall time, the planners'
- * search against the `pathfinding` library and on token passing's workload (bench/search.ts),
- * and the assignment solver against munkres-js on the same inputs. Never part of `npm test`.
+ * `npm run bench`: engine and policy throughput in agent-steps per wall second (an
+ * agent-step is one robot over one simulated tick, whether or not it moved: robots x
+ * simulated ticks), beside the real-time factor (simulated seconds per wall second) and the
+ * tasks delivered, the planning share of wall time, the planners' search against the
+ * `pathfinding` library and on token passing's workload (bench/search.ts), the assignment
+ * solver against munkres-js on the same inputs, and peak memory against run length. Never
+ * part of `npm test`.
  *
  *   npm run bench                 table on stdout
  *   npm run bench -- --json       one JSON array of rows
- *   npm run bench -- --quick      skip the slow rows (munkres-js at 1000, pibt at 1,000 and 10,000 robots, the replay viewer)
- *   npm run bench -- --only NAME  only rows whose name starts with NAME (engine, policy, pibt, replay, search, assignment)
+ *   npm run bench -- --quick      skip the slow rows (munkres-js at 1000, pibt at 1,000 and 10,000 robots, the replay viewer, memory)
+ *   npm run bench -- --only NAME  only rows whose name starts with NAME (engine, policy, pibt, replay, search, assignment, memory)
  */
 import { loadScenarioFile } from '../scenarios/load.ts';
 import { prepareSetup } from '../experiments/replications.ts';
@@ -83,6 +86,13 @@ if (wanted('search')) {
   for (const row of benchSearch(quick)) {
     rows.push(row);
     log(`${row.name} ${JSON.stringify(row)}`);
+  }
+}
+if (wanted('memory') && !quick && policies.some((p) => p.name === 'pibt')) {
+  const { benchMemory } = await import('./memory.ts');
+  for (const row of benchMemory()) {
+    log(`memory pibt ${row.robots} robots ${row.simulatedHours} h: peak RSS ${row.peakRssMb} MB`);
+    rows.push(row as unknown as Row);
   }
 }
 if (wanted('assignment')) {

@@ -150,7 +150,7 @@ export function renderRunTable(summary: RunSummary): string {
     const served = summary.loadedMetersPerTask.delivered.mean;
     const offered = summary.loadedMetersPerTask.released.mean;
     lines.push(
-      `capacity run: saturated demand keeps ${summary.capacityPoolDepth} open tasks (robots + task endpoints); lead time and tasks in system are not measured. Loaded distance per task served ${formatNumber(served, 'seconds')} m vs released ${formatNumber(offered, 'seconds')} m`,
+      `capacity run: saturated demand kept a pool of ${summary.capacityPoolDepth} open tasks (robots + task endpoints, grown while the policy left robots idle); lead time and tasks in system are not measured. Loaded distance per task served ${formatNumber(served, 'seconds')} m vs released ${formatNumber(offered, 'seconds')} m`,
     );
   }
   const unreleased = traceWarning(summary);

@@ -89,7 +89,7 @@ export interface RunSummary {
   deadlockRobotHoursLost: Interval;
   /** Saturated demand: throughput and robot time measure capacity; lead time and tasks in system are not reported. */
   capacityRun: boolean;
-  /** Saturated demand: the open-task pool's depth (robots + task endpoints); null otherwise. */
+  /** Saturated demand: the open-task pool's depth at the end (starts at robots + task endpoints, grows while the policy leaves robots idle; the largest over replications); null otherwise. */
   capacityPoolDepth: number | null;
   /** Mean loaded distance (meters) of tasks delivered and released after the warm-up: a gap shows dispatch favouring short tasks. */
   loadedMetersPerTask: { delivered: Interval; released: Interval };
@@ -329,7 +329,7 @@ export function summarize(scenario: Scenario, records: ReplicationRecord[], wall
     gridlocks: perReplicationInterval((w) => w.gridlocks, 'nonNegative'),
     deadlockRobotHoursLost: perReplicationInterval((w) => w.deadlockRobotHoursLost, 'nonNegative'),
     capacityRun: demand.kind === 'saturated',
-    capacityPoolDepth: records[0].poolDepth,
+    capacityPoolDepth: records[0].poolDepth === null ? null : Math.max(...records.map((r) => r.poolDepth ?? 0)),
     loadedMetersPerTask: {
       delivered: interval('loadedMetersPerTask.delivered', (w) => w.deliveredLoadedMeters, 'nonNegative'),
       released: interval('loadedMetersPerTask.released', (w) => w.releasedLoadedMeters, 'nonNegative'),
