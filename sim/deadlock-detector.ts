@@ -99,6 +99,10 @@ export class DeadlockDetector {
   private touchedStations: number[] = [];
   /** Per cell: the last tick a robot was in service there (handling ended or still going on). */
   private readonly lastServed: Int32Array;
+  private readonly livelockCandidates: number[] = [];
+  /** Robots stuck (in a closed set) at the last evaluation, and robots in an episode now. */
+  private stuckCount = 0;
+  private members = 0;
   private gridlockSince = -1;
   private gridlockEpisode = -1;
 
@@ -150,6 +154,7 @@ export class DeadlockDetector {
   relocated(robot: number, tick: number): void {
     if (this.episodeOf[robot] >= 0) this.leave(robot, tick, true);
     this.resetProgress(robot, tick);
+    this.lastCell[robot] = -1;
     this.stuckSince[robot] = -1;
   }
 
@@ -162,52 +167,62 @@ export class DeadlockDetector {
   evaluate(tick: number, world: World, next: Int32Array, wanted: Int32Array | null, delivered: boolean): EvaluationResult {
     const robots = this.robots;
     const cells = world.robotCell;
+    const phases = world.robotPhase;
     const status = this.status;
     const neighbors = this.layout.neighbors;
-
-    // Progress and motion since the last evaluation.
-    for (let r = 0; r < robots; r++) {
-      const cell = cells[r];
-      if (this.lastCell[r] >= 0 && this.lastCell[r] !== cell) this.movesSinceProgress[r]++;
-      this.lastCell[r] = cell;
-      const goal = world.goalOf(r);
-      if (goal !== this.goalSeen[r]) {
-        this.goalSeen[r] = goal;
-        this.progress(r, tick);
-        if (goal >= 0) this.bestDistance[r] = this.distances.to(goal)[cell];
-        continue;
-      }
-      if (goal < 0) {
-        // No goal (idle or handling): nothing to progress towards; keep the clock fresh.
-        this.lastProgress[r] = tick;
-        this.movesSinceProgress[r] = 0;
-        continue;
-      }
-      const d = this.distances.to(goal)[cell];
-      if (d < this.bestDistance[r]) {
-        this.bestDistance[r] = d;
-        this.progress(r, tick);
-      }
-    }
+    const distances = this.distances;
 
     // Cells taken at tick + 1.
     const stamp = ++this.stamp;
+    const nextStamp = this.nextStamp;
+    const nextOccupant = this.nextOccupant;
     for (let r = 0; r < robots; r++) {
-      const c = isHandling(world.robotPhase[r]) ? cells[r] : next[r];
-      this.nextStamp[c] = stamp;
-      this.nextOccupant[c] = r;
+      const c = isHandling(phases[r]) ? cells[r] : next[r];
+      nextStamp[c] = stamp;
+      nextOccupant[c] = r;
     }
-    const takenBy = (c: number): number => (this.nextStamp[c] === stamp ? this.nextOccupant[c] : -1);
 
-    // Status and wait edges.
+    // One pass: progress since the last evaluation, then status and wait edges. Distance
+    // tables are looked up only for robots that moved (progress) or stand with a goal.
+    let blocked = 0;
+    let idle = 0;
+    const candidates = this.livelockCandidates;
+    candidates.length = 0;
     for (let r = 0; r < robots; r++) {
-      this.waitCount[r] = 0;
-      const phase = world.robotPhase[r];
       const cell = cells[r];
+      const moved = this.lastCell[r] >= 0 && this.lastCell[r] !== cell;
+      if (moved) this.movesSinceProgress[r]++;
+      this.lastCell[r] = cell;
+      const phase = phases[r];
+      const goal = world.goalOf(r);
+      let table: Int32Array | null = null;
+      if (goal !== this.goalSeen[r]) {
+        this.goalSeen[r] = goal;
+        this.progress(r, tick);
+        if (goal >= 0) {
+          table = distances.to(goal);
+          this.bestDistance[r] = table[cell];
+        }
+      } else if (goal < 0) {
+        // No goal (idle or handling): nothing to progress towards; keep the clock fresh.
+        this.lastProgress[r] = tick;
+        this.movesSinceProgress[r] = 0;
+      } else if (moved) {
+        table = distances.to(goal);
+        const d = table[cell];
+        if (d < this.bestDistance[r]) {
+          this.bestDistance[r] = d;
+          this.progress(r, tick);
+        }
+      }
+
+      this.waitCount[r] = 0;
+      if (phase === Phase.Idle) idle++;
       if (isHandling(phase)) {
         status[r] = WaitStatus.Handling;
         continue;
       }
+      if (goal >= 0 && this.episodeOf[r] < 0 && tick - this.lastProgress[r] >= this.deadlockTicks) candidates.push(r);
       if (next[r] !== cell) {
         status[r] = WaitStatus.Moving;
         continue;
@@ -216,27 +231,27 @@ export class DeadlockDetector {
         status[r] = WaitStatus.IdleStill;
         continue;
       }
-      const goal = world.goalOf(r);
       const wish = wanted === null ? -1 : wanted[r];
       if (wish >= 0) {
-        const owner = wish === cell ? -1 : takenBy(wish);
+        const owner = wish === cell || nextStamp[wish] !== stamp ? -1 : nextOccupant[wish];
         if (owner < 0 || owner === r) status[r] = WaitStatus.Free;
         else {
           status[r] = WaitStatus.Blocked;
           this.waitsOn[r * 4] = owner;
           this.waitCount[r] = 1;
+          blocked++;
         }
         continue;
       }
-      const table = goal >= 0 ? this.distances.to(goal) : null;
+      if (table === null && goal >= 0) table = distances.to(goal);
       const here = table === null ? unreachable : table[cell];
       let closer = 0;
       let free = false;
-      for (let d = 0; d < 4 && !free; d++) {
+      for (let d = 0; d < 4; d++) {
         const n = neighbors[cell * 4 + d];
         if (n < 0 || table === null || table[n] !== here - 1) continue;
         closer++;
-        const owner = takenBy(n);
+        const owner = nextStamp[n] === stamp ? nextOccupant[n] : -1;
         if (owner < 0 || owner === r) {
           free = true;
           break;
@@ -250,10 +265,30 @@ export class DeadlockDetector {
         this.waitCount[r] = 0;
       } else {
         status[r] = WaitStatus.Blocked;
+        blocked++;
       }
     }
 
-    // Reverse edges (compressed rows) for the backward search from the sinks.
+    if (blocked > 0) this.classifyBlocked(tick, world);
+    else this.noneBlocked(tick);
+
+    const clearable: number[] = [];
+    if (this.members > 0) this.membersLeave(tick, world);
+    if (this.stuckCount > 0) this.findDeadlocks(tick, world, clearable);
+    if (candidates.length > 0) this.findLivelocks(tick, world, clearable);
+    this.findGridlock(tick, world, delivered, idle);
+    return { clearable };
+  }
+
+  /**
+   * Some robot is blocked: reverse the wait edges, search back from the sinks (robots in
+   * service first, so a chain that reaches one is that station's queue; then moving and free
+   * robots: traffic), charge queue time to stations, and mark the rest stuck.
+   */
+  private classifyBlocked(tick: number, world: World): void {
+    const robots = this.robots;
+    const status = this.status;
+    const cells = world.robotCell;
     const start = this.predecessorStart;
     start.fill(0);
     for (let r = 0; r < robots; r++) for (let k = 0; k < this.waitCount[r]; k++) start[this.waitsOn[r * 4 + k] + 1]++;
@@ -262,8 +297,6 @@ export class DeadlockDetector {
     for (let r = 0; r < robots; r++) fill[r] = start[r];
     for (let r = 0; r < robots; r++) for (let k = 0; k < this.waitCount[r]; k++) this.predecessors[fill[this.waitsOn[r * 4 + k]]++] = r;
 
-    // Blocked robots that reach a robot in service queue at its station (first pass), those
-    // that reach a moving or free robot are in traffic (second pass); the rest are stuck.
     const reached = this.reached;
     reached.fill(0);
     const queueStation = this.queueStation;
@@ -296,8 +329,12 @@ export class DeadlockDetector {
     for (const s of this.touchedStations) this.queuedNow[s] = 0;
     const touched: number[] = [];
     for (let r = 0; r < robots; r++) {
-      if (status[r] !== WaitStatus.Blocked || !reached[r]) continue;
-      const s = queueStation[r];
+      if (status[r] !== WaitStatus.Blocked) {
+        // Only blocked robots keep their station mark.
+        queueStation[r] = -1;
+        continue;
+      }
+      const s = reached[r] ? queueStation[r] : -1;
       if (s < 0) continue;
       if (this.queuedNow[s] === 0) touched.push(s);
       this.queuedNow[s]++;
@@ -305,22 +342,32 @@ export class DeadlockDetector {
     for (const s of this.touchedStations) if (this.queuedNow[s] === 0) this.onQueue(s, tick, 0);
     for (const s of touched) this.onQueue(s, tick, this.queuedNow[s]);
     this.touchedStations = touched;
-    // Handling robots are not queued; only blocked robots keep their station mark.
-    for (let r = 0; r < robots; r++) if (status[r] !== WaitStatus.Blocked) queueStation[r] = -1;
 
     // Stuck robots: blocked and reaching no sink.
+    let stuckCount = 0;
     for (let r = 0; r < robots; r++) {
       const stuck = status[r] === WaitStatus.Blocked && !reached[r];
       if (!stuck) this.stuckSince[r] = -1;
-      else if (this.stuckSince[r] < 0) this.stuckSince[r] = tick;
+      else {
+        stuckCount++;
+        if (this.stuckSince[r] < 0) this.stuckSince[r] = tick;
+      }
     }
+    this.stuckCount = stuckCount;
+  }
 
-    const clearable: number[] = [];
-    this.membersLeave(tick, world);
-    this.findDeadlocks(tick, world, clearable);
-    this.findLivelocks(tick, world, clearable);
-    this.findGridlock(tick, world, delivered);
-    return { clearable };
+  /** Nobody is blocked: no queue, nobody stuck. */
+  private noneBlocked(tick: number): void {
+    for (const s of this.touchedStations) {
+      this.queuedNow[s] = 0;
+      this.onQueue(s, tick, 0);
+    }
+    this.touchedStations = [];
+    if (this.stuckCount > 0) {
+      this.stuckSince.fill(-1);
+      this.stuckCount = 0;
+    }
+    this.queueStation.fill(-1);
   }
 
   /** Earliest tick at which a new episode could be found if nothing moves, or Infinity. */
@@ -365,6 +412,7 @@ export class DeadlockDetector {
   private leave(robot: number, tick: number, cleared: boolean): void {
     const episode = this.episodes[this.episodeOf[robot]];
     this.episodeOf[robot] = -1;
+    this.members--;
     episode.active.delete(robot);
     if (this.memberSince[robot] >= 0) episode.lostTicks += tick - this.memberSince[robot];
     if (cleared) episode.cleared = true;
@@ -373,6 +421,7 @@ export class DeadlockDetector {
     for (const r of episode.active) if (this.memberSince[r] >= 0) holders++;
     if (holders === 0) {
       for (const r of episode.active) this.episodeOf[r] = -1;
+      this.members -= episode.active.size;
       episode.active.clear();
       episode.endTick = tick;
     }
@@ -381,6 +430,7 @@ export class DeadlockDetector {
   private join(episodeId: number, robot: number, since: number): void {
     const episode = this.episodes[episodeId];
     this.episodeOf[robot] = episodeId;
+    this.members++;
     this.memberSince[robot] = since;
     episode.active.add(robot);
     episode.members.push(robot);
@@ -459,7 +509,7 @@ export class DeadlockDetector {
 
   private findLivelocks(tick: number, world: World, clearable: number[]): void {
     const neighbors = this.layout.neighbors;
-    for (let r = 0; r < this.robots; r++) {
+    for (const r of this.livelockCandidates) {
       if (this.episodeOf[r] >= 0 || this.stuckSince[r] >= 0 || world.goalOf(r) < 0) continue;
       const since = this.lastProgress[r];
       const elapsed = tick - since;
@@ -487,9 +537,7 @@ export class DeadlockDetector {
     }
   }
 
-  private findGridlock(tick: number, world: World, delivered: boolean): void {
-    let idle = 0;
-    for (let r = 0; r < this.robots; r++) if (world.robotPhase[r] === Phase.Idle) idle++;
+  private findGridlock(tick: number, world: World, delivered: boolean, idle: number): void {
     const condition = world.openTasks.length > 0 && idle > 0;
     if (!condition || delivered) {
       if (this.gridlockEpisode >= 0) this.endGridlock(tick);
