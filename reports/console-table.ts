@@ -62,6 +62,9 @@ export function describeStability(summary: RunSummary): string {
   return `warning: UNSTABLE - the backlog grows by about ${signed(g.mean, 0)} tasks/h${range}: demand exceeds what this fleet delivers. Lead times count the ages of tasks still open, are lower bounds and have no interval`;
 }
 
+/** Served-vs-released mix gap above which the table warns (common practice: in-flight tasks alone stay well below it). */
+const mixGapWarning = 0.05;
+
 /** A trace longer than the run: how many of its tasks were never released (also written to stderr by `run`). */
 export function traceWarning(summary: RunSummary): string | null {
   const trace = summary.trace;
@@ -145,6 +148,15 @@ export function renderRunTable(summary: RunSummary): string {
     .slice(0, 3);
   if (worst.length > 0) {
     lines.push(`most starved ${workName} (idle, work waiting, no robot assigned): ${worst.map((s) => `${s.cell} ${(s.noRobotFraction * 100).toFixed(1)}%`).join(', ')}`);
+  }
+  const gap = summary.demandMixGap;
+  const gapText = [gap.pickup === null ? null : `${(gap.pickup * 100).toFixed(1)}% at ${workName}`, gap.drop === null ? null : `${(gap.drop * 100).toFixed(1)}% at drops`].filter((v) => v !== null).join(', ');
+  if (Math.max(gap.pickup ?? 0, gap.drop ?? 0) > mixGapWarning) {
+    lines.push(
+      `warning: tasks served stray from the demand's mix (total variation distance ${gapText}): some stations' work is left waiting, so this throughput is not sustainable for this demand (stations.csv: tasksReleased, tasksServed)`,
+    );
+  } else if (summary.capacityRun && gapText !== '') {
+    lines.push(`tasks served follow the demand's mix (total variation distance ${gapText})`);
   }
   if (summary.capacityRun) {
     const served = summary.loadedMetersPerTask.delivered.mean;

@@ -90,6 +90,8 @@ export function stationsCsv(summary: RunSummary): string {
       noRobotFraction: round(s.noRobotFraction),
       travellingFraction: round(s.travellingFraction),
       queueSecondsPerHour: round(s.queueSecondsPerHour),
+      tasksReleased: s.tasksReleased,
+      tasksServed: s.tasksServed,
     })),
     { header: true },
   );

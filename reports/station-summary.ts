@@ -28,6 +28,9 @@ export interface StationRow {
   queueSecondsPerHour: number;
   /** DESIGN's starved share: the same as noRobotFraction (null for drops). */
   starvedFraction: number | null;
+  /** Whole run, all replications: tasks released with work at the station, and handlings finished there. */
+  tasksReleased: number;
+  tasksServed: number;
 }
 
 export interface StationGroupSummary {
@@ -42,7 +45,8 @@ export interface StationGroupSummary {
 const mean = (values: number[]): number => (values.length > 0 ? values.reduce((s, v) => s + v, 0) / values.length : NaN);
 const orNull = (value: number): number | null => (Number.isFinite(value) ? value : null);
 
-export function stationRows(layout: Layout, record: ReplicationRecord, perReplication: WindowMetrics[]): StationRow[] {
+export function stationRows(layout: Layout, records: ReplicationRecord[], perReplication: WindowMetrics[]): StationRow[] {
+  const record = records[0];
   return Array.from(record.stationCells, (cell, s) => {
     const pick = (f: (w: StationWindow) => number) => mean(perReplication.map((w) => f(w.stations[s])));
     const noRobot = pick((w) => w.noRobotFraction);
@@ -56,8 +60,27 @@ export function stationRows(layout: Layout, record: ReplicationRecord, perReplic
       travellingFraction: orNull(pick((w) => w.travellingFraction)),
       queueSecondsPerHour: pick((w) => w.queueSecondsPerHour),
       starvedFraction: orNull(noRobot),
+      tasksReleased: records.reduce((sum, r) => sum + r.metrics.stationReleased[s], 0),
+      tasksServed: records.reduce((sum, r) => sum + r.metrics.stationServed[s], 0),
     };
   });
+}
+
+/**
+ * How far the tasks served stray from the demand's mix over a group's stations: the total
+ * variation distance between the shares of tasks served and of tasks released per station,
+ * 1/2 sum |served_s / served - released_s / released| (0 = served in the demand's
+ * proportions, 1 = disjoint). Whole run, all replications; null for a group without
+ * stations or tasks. A policy that leaves one station's work waiting (token passing holding
+ * back tasks for a popular chute, nearest-task dispatch skipping a far induct) shows a gap
+ * that in-flight tasks alone cannot explain: its throughput is not sustainable for the mix.
+ */
+export function demandMixGap(rows: StationRow[], group: 'pickup' | 'drop'): number | null {
+  const members = rows.filter((row) => row.group === group);
+  const released = members.reduce((sum, row) => sum + row.tasksReleased, 0);
+  const served = members.reduce((sum, row) => sum + row.tasksServed, 0);
+  if (members.length === 0 || released === 0 || served === 0) return null;
+  return members.reduce((sum, row) => sum + Math.abs(row.tasksServed / served - row.tasksReleased / released), 0) / 2;
 }
 
 /** `interval` forms an interval (named, within bounds) from one value per sample (replication or batch). */

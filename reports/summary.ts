@@ -25,7 +25,7 @@ import { batchMeansInterval, batchMeansRule, clipInterval, intervalOf, mserCut, 
 import { windowMetrics, type WindowMetrics } from './window-metrics.ts';
 import { assessStability, type StabilityReport } from './stability.ts';
 import { safetyNote } from './safety.ts';
-import { stationGroupSummaries, stationRows, type StationGroupSummary, type StationRow } from './station-summary.ts';
+import { demandMixGap, stationGroupSummaries, stationRows, type StationGroupSummary, type StationRow } from './station-summary.ts';
 
 export interface WarmupInfo {
   /** `none`: no automatic cut because demand varies in time (see `note`). */
@@ -93,6 +93,8 @@ export interface RunSummary {
   capacityPoolDepth: number | null;
   /** Mean loaded distance (meters) of tasks delivered and released after the warm-up: a gap shows dispatch favouring short tasks. */
   loadedMetersPerTask: { delivered: Interval; released: Interval };
+  /** Total variation distance between the station shares of tasks served and released (whole run), per group: a large gap means some station's work is left waiting. */
+  demandMixGap: { pickup: number | null; drop: number | null };
   /** Mean number of robots holding a task. */
   busyRobots: Interval;
   /** Share of robot time parked (no task, not moving) while released tasks were open. */
@@ -271,7 +273,7 @@ export function summarize(scenario: Scenario, records: ReplicationRecord[], wall
 
   const layout = parseLayout(scenario.layoutText);
   const wellFormed = checkWellFormed(layout, scenario.fleet.robots);
-  const stations = stationRows(layout, records[0], perReplication);
+  const stations = stationRows(layout, records, perReplication);
   const sum = (pick: (r: ReplicationRecord) => number) => records.reduce((s, r) => s + pick(r), 0);
   const demand = scenario.demand;
 
@@ -334,6 +336,7 @@ export function summarize(scenario: Scenario, records: ReplicationRecord[], wall
       delivered: interval('loadedMetersPerTask.delivered', (w) => w.deliveredLoadedMeters, 'nonNegative'),
       released: interval('loadedMetersPerTask.released', (w) => w.releasedLoadedMeters, 'nonNegative'),
     },
+    demandMixGap: { pickup: demandMixGap(stations, 'pickup'), drop: demandMixGap(stations, 'drop') },
     busyRobots: interval('busyRobots', (w) => w.busyRobots, 'nonNegative'),
     parkedWhileTasksOpenFraction: interval('parkedWhileTasksOpenFraction', (w) => w.parkedWhileTasksOpenFraction, 'fraction'),
     collisions: sum((r) => r.collisions),

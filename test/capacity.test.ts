@@ -11,6 +11,7 @@ import { describe, expect, it } from 'vitest';
 import { loadScenarioFile } from '../scenarios/load.ts';
 import { runReplications } from '../experiments/replications.ts';
 import { summarize, type RunSummary } from '../reports/summary.ts';
+import { demandMixGap } from '../reports/station-summary.ts';
 import type { Scenario } from '../sim/model.ts';
 
 const demoHall = path.join(import.meta.dirname, '..', 'scenarios', 'demo-sortation.yaml');
@@ -39,4 +40,23 @@ describe('capacity runs on the demo hall (38 parking spots)', () => {
       });
     }
   }
+});
+
+describe('demand mix gap (total variation distance between served and released station shares)', () => {
+  it('is computed over a group by hand: released 50/30/20, served 50/40/10 gives 0.1', () => {
+    const row = (tasksReleased: number, tasksServed: number) => ({ cell: 'x', kind: 'drop' as const, group: 'drop' as const, utilisation: 0, idleFraction: 1, noRobotFraction: null, travellingFraction: null, queueSecondsPerHour: 0, starvedFraction: null, tasksReleased, tasksServed });
+    // Shares released 0.5, 0.3, 0.2 and served 0.5, 0.4, 0.1: (0 + 0.1 + 0.1) / 2 = 0.1.
+    expect(demandMixGap([row(50, 50), row(30, 40), row(20, 10)], 'drop')).toBeCloseTo(0.1, 12);
+    expect(demandMixGap([row(50, 50)], 'pickup')).toBeNull();
+  });
+
+  it('flags token passing at one robot per parking spot, which leaves the popular chutes waiting; not flow-batch', () => {
+    // 38 robots, 40 chutes, Zipf-skewed drops: token passing keeps about one robot per chute
+    // in flight, so the most popular chute (11% of parcels) is served far below its share.
+    const tokenPassing = summaryOf('token-passing', 38, 'saturated');
+    expect(tokenPassing.demandMixGap.drop!).toBeGreaterThan(0.1);
+    const flowBatch = summaryOf('flow-batch', 38, 'saturated');
+    expect(flowBatch.demandMixGap.drop!).toBeLessThan(0.05);
+    expect(flowBatch.demandMixGap.pickup!).toBeLessThan(0.05);
+  });
 });

@@ -169,7 +169,7 @@ describe('run --out', () => {
     expect(lines('throughput.csv')).toHaveLength(1 + 2 * 15);
     // One row per station: 8 pickups and 40 drops.
     expect(lines('stations.csv')).toHaveLength(1 + 48);
-    expect(lines('stations.csv')[0]).toBe('cell,kind,idleFraction,starvedFraction,group,utilisation,noRobotFraction,travellingFraction,queueSecondsPerHour');
+    expect(lines('stations.csv')[0]).toBe('cell,kind,idleFraction,starvedFraction,group,utilisation,noRobotFraction,travellingFraction,queueSecondsPerHour,tasksReleased,tasksServed');
     // One row per cell of the 40 x 20 demo hall, walls included.
     expect(lines('cells.csv')).toHaveLength(1 + 40 * 20);
     expect(lines('cells.csv')[0]).toBe('x,y,kind,waitingSecondsPerHour');
