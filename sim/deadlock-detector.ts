@@ -7,9 +7,10 @@
  * another robot waits on that robot. The engine does not know which cell a policy wanted
  * (policies write only where each robot will be), so the wish is read from the policy's
  * optional `wantedCells` channel (sim/policy.ts) when it fills it, and otherwise inferred:
- * the robot wants any neighbour one step closer to its goal on the breadth-first distance
- * table, and waits on robots only when every such neighbour is taken at the next tick (if
- * one is free, the robot waits on its policy, not on a robot). A robot may wait on up to
+ * the robot wants any neighbour one step closer to its goal (read from the goal's compact
+ * distance field, sim/distance-field.ts, so no full table per goal is needed), and waits on
+ * robots only when every such neighbour is taken at the next tick (if one is free, the robot
+ * waits on its policy, not on a robot). A robot may wait on up to
  * four robots and can go on when any one of them moves (the OR model of the wait-for graph:
  * a deadlock is a knot, not merely a cycle; Holt 1972).
  *
@@ -40,10 +41,13 @@
  * members' ticks from the fleet's stall to its end.
  *
  * Cost: O(robots) per evaluated tick (up to four neighbour checks per standing robot, a
- * reverse breadth-first pass over the wait edges), typed arrays sized once.
+ * reverse breadth-first pass over the wait edges only when some robot is blocked), typed
+ * arrays sized once. Distances come from compact per-goal fields, never a full table per
+ * robot, so thousands of live goals fit (sim/distance-field.ts).
  */
 import type { DistanceTables } from './distance-table.ts';
-import { unreachable } from './distance-table.ts';
+import type { DistanceField, DistanceFields } from './distance-field.ts';
+import { GoalProgress } from './goal-progress.ts';
 import type { Layout } from './layout.ts';
 import type { DeadlockEpisode, EpisodeKind } from './metrics.ts';
 import { Phase, isHandling, type World } from './world.ts';
@@ -78,7 +82,12 @@ export class DeadlockDetector {
 
   private readonly robots: number;
   private readonly lastProgress: Int32Array;
-  private readonly bestDistance: Int32Array;
+  /** New closest distance to the goal, followed step by step (sim/goal-progress.ts). */
+  private readonly goalProgress: GoalProgress;
+  private readonly fields: DistanceFields;
+  /** Each robot's field for the goal it last needed one for. */
+  private readonly fieldOf: (DistanceField | null)[];
+  private readonly fieldGoal: Int32Array;
   private readonly goalSeen: Int32Array;
   private readonly lastCell: Int32Array;
   private readonly movesSinceProgress: Int32Array;
@@ -108,7 +117,7 @@ export class DeadlockDetector {
 
   constructor(
     private readonly layout: Layout,
-    private readonly distances: DistanceTables,
+    distances: DistanceTables,
     robots: number,
     private readonly deadlockTicks: number,
     /** Station index per cell, or -1. */
@@ -121,7 +130,10 @@ export class DeadlockDetector {
     this.status = new Uint8Array(robots);
     this.queueStation = new Int32Array(robots).fill(-1);
     this.lastProgress = new Int32Array(robots);
-    this.bestDistance = new Int32Array(robots).fill(unreachable);
+    this.fields = distances.fields;
+    this.goalProgress = new GoalProgress(robots, this.fields);
+    this.fieldOf = new Array<DistanceField | null>(robots).fill(null);
+    this.fieldGoal = new Int32Array(robots).fill(-1);
     this.goalSeen = new Int32Array(robots).fill(-2);
     this.lastCell = new Int32Array(robots).fill(-1);
     this.movesSinceProgress = new Int32Array(robots);
@@ -170,7 +182,6 @@ export class DeadlockDetector {
     const phases = world.robotPhase;
     const status = this.status;
     const neighbors = this.layout.neighbors;
-    const distances = this.distances;
 
     // Cells taken at tick + 1.
     const stamp = ++this.stamp;
@@ -182,8 +193,8 @@ export class DeadlockDetector {
       nextOccupant[c] = r;
     }
 
-    // One pass: progress since the last evaluation, then status and wait edges. Distance
-    // tables are looked up only for robots that moved (progress) or stand with a goal.
+    // One pass: progress since the last evaluation, then status and wait edges. Fields are
+    // looked at only for robots that moved (progress) or stand with a goal (their wishes).
     let blocked = 0;
     let idle = 0;
     const candidates = this.livelockCandidates;
@@ -195,25 +206,16 @@ export class DeadlockDetector {
       this.lastCell[r] = cell;
       const phase = phases[r];
       const goal = world.goalOf(r);
-      let table: Int32Array | null = null;
       if (goal !== this.goalSeen[r]) {
         this.goalSeen[r] = goal;
         this.progress(r, tick);
-        if (goal >= 0) {
-          table = distances.to(goal);
-          this.bestDistance[r] = table[cell];
-        }
+        if (goal >= 0) this.goalProgress.observe(r, goal, cell); // starts following the new goal
       } else if (goal < 0) {
         // No goal (idle or handling): nothing to progress towards; keep the clock fresh.
         this.lastProgress[r] = tick;
         this.movesSinceProgress[r] = 0;
-      } else if (moved) {
-        table = distances.to(goal);
-        const d = table[cell];
-        if (d < this.bestDistance[r]) {
-          this.bestDistance[r] = d;
-          this.progress(r, tick);
-        }
+      } else if (moved && this.goalProgress.observe(r, goal, cell)) {
+        this.progress(r, tick);
       }
 
       this.waitCount[r] = 0;
@@ -243,13 +245,20 @@ export class DeadlockDetector {
         }
         continue;
       }
-      if (table === null && goal >= 0) table = distances.to(goal);
-      const here = table === null ? unreachable : table[cell];
+      // Neighbours one step closer: clear bits of the field's ranking (-1: the goal is cut off).
+      let field = this.fieldGoal[r] === goal ? this.fieldOf[r] : null;
+      let rank = field === null ? -2 : field.rankAround(cell);
+      if (rank === -2) {
+        field = this.fields.to(goal, cell);
+        this.fieldOf[r] = field;
+        this.fieldGoal[r] = goal;
+        rank = field.rankAround(cell);
+      }
       let closer = 0;
       let free = false;
-      for (let d = 0; d < 4; d++) {
+      for (let d = 0; d < 4 && rank >= 0; d++) {
         const n = neighbors[cell * 4 + d];
-        if (n < 0 || table === null || table[n] !== here - 1) continue;
+        if (n < 0 || (rank & (1 << d)) !== 0) continue;
         closer++;
         const owner = nextStamp[n] === stamp ? nextOccupant[n] : -1;
         if (owner < 0 || owner === r) {
@@ -260,7 +269,7 @@ export class DeadlockDetector {
         for (let k = 0; k < this.waitCount[r]; k++) if (this.waitsOn[r * 4 + k] === owner) seen = true;
         if (!seen) this.waitsOn[r * 4 + this.waitCount[r]++] = owner;
       }
-      if (free || closer === 0 || here >= unreachable) {
+      if (free || closer === 0) {
         status[r] = WaitStatus.Free;
         this.waitCount[r] = 0;
       } else {
@@ -399,7 +408,7 @@ export class DeadlockDetector {
   private resetProgress(robot: number, tick: number): void {
     this.lastProgress[robot] = tick;
     this.movesSinceProgress[robot] = 0;
-    this.bestDistance[robot] = unreachable;
+    this.goalProgress.reset(robot);
     this.goalSeen[robot] = -2;
   }
 
