@@ -26,11 +26,14 @@
  * robots that later join it by waiting on a member.
  *
  * Livelock: a robot holding a goal that made no progress (no phase change, no new closest
- * distance to its goal) for `deadlockTicks` while it kept moving (it moved in at least a
- * quarter of the ticks since its last progress), stands in no closed set, and whose goal
- * served no robot in that time. A robot kept circling near a goal that serves others (a
- * reactive policy pushing a robot about at a busy induct) is queueing for that station,
- * not livelocked. Neighbouring livelocked robots form one episode.
+ * distance to its goal) for `deadlockTicks` while it kept moving in place: it moved in at
+ * least a quarter of the ticks since its last progress, and within an area so small that it
+ * must have come back to the same cells (the bounding box of its cells since then has at
+ * most half as many cells as it made moves, so every cell was entered twice on average: a
+ * livelock repeats states, a detour or a robot pushed along does not). It stands in no
+ * closed set, and its goal served no robot in that time: a robot kept circling near a goal
+ * that serves others (a reactive policy pushing a robot about at a busy induct) is queueing
+ * for that station. Neighbouring livelocked robots form one episode.
  *
  * Gridlock: the fleet delivers nothing for `deadlockTicks` while released tasks are open
  * and some robot has no task. Its members are the robots without a task when it is found.
@@ -91,6 +94,11 @@ export class DeadlockDetector {
   private readonly goalSeen: Int32Array;
   private readonly lastCell: Int32Array;
   private readonly movesSinceProgress: Int32Array;
+  /** Bounding box of the cells each robot stood on since its last progress (minX -1: not started). */
+  private readonly boxMinX: Int32Array;
+  private readonly boxMaxX: Int32Array;
+  private readonly boxMinY: Int32Array;
+  private readonly boxMaxY: Int32Array;
   private readonly stuckSince: Int32Array;
   private readonly episodeOf: Int32Array;
   private readonly memberSince: Int32Array;
@@ -137,6 +145,10 @@ export class DeadlockDetector {
     this.goalSeen = new Int32Array(robots).fill(-2);
     this.lastCell = new Int32Array(robots).fill(-1);
     this.movesSinceProgress = new Int32Array(robots);
+    this.boxMinX = new Int32Array(robots).fill(-1);
+    this.boxMaxX = new Int32Array(robots);
+    this.boxMinY = new Int32Array(robots);
+    this.boxMaxY = new Int32Array(robots);
     this.stuckSince = new Int32Array(robots).fill(-1);
     this.episodeOf = new Int32Array(robots).fill(-1);
     this.memberSince = new Int32Array(robots);
@@ -182,6 +194,7 @@ export class DeadlockDetector {
     const phases = world.robotPhase;
     const status = this.status;
     const neighbors = this.layout.neighbors;
+    const width = this.layout.width;
 
     // Cells taken at tick + 1.
     const stamp = ++this.stamp;
@@ -204,6 +217,17 @@ export class DeadlockDetector {
       const moved = this.lastCell[r] >= 0 && this.lastCell[r] !== cell;
       if (moved) this.movesSinceProgress[r]++;
       this.lastCell[r] = cell;
+      const x = cell % width;
+      const y = (cell - x) / width;
+      if (this.boxMinX[r] < 0) {
+        this.boxMinX[r] = this.boxMaxX[r] = x;
+        this.boxMinY[r] = this.boxMaxY[r] = y;
+      } else if (moved) {
+        if (x < this.boxMinX[r]) this.boxMinX[r] = x;
+        else if (x > this.boxMaxX[r]) this.boxMaxX[r] = x;
+        if (y < this.boxMinY[r]) this.boxMinY[r] = y;
+        else if (y > this.boxMaxY[r]) this.boxMaxY[r] = y;
+      }
       const phase = phases[r];
       const goal = world.goalOf(r);
       if (goal !== this.goalSeen[r]) {
@@ -408,6 +432,7 @@ export class DeadlockDetector {
   private resetProgress(robot: number, tick: number): void {
     this.lastProgress[robot] = tick;
     this.movesSinceProgress[robot] = 0;
+    this.boxMinX[robot] = -1;
     this.goalProgress.reset(robot);
     this.goalSeen[robot] = -2;
   }
@@ -415,6 +440,7 @@ export class DeadlockDetector {
   private progress(robot: number, tick: number): void {
     this.lastProgress[robot] = tick;
     this.movesSinceProgress[robot] = 0;
+    this.boxMinX[robot] = -1;
     if (this.episodeOf[robot] >= 0) this.leave(robot, tick, false);
   }
 
@@ -522,7 +548,11 @@ export class DeadlockDetector {
       if (this.episodeOf[r] >= 0 || this.stuckSince[r] >= 0 || world.goalOf(r) < 0) continue;
       const since = this.lastProgress[r];
       const elapsed = tick - since;
-      if (elapsed < this.deadlockTicks || this.movesSinceProgress[r] * 4 < elapsed) continue;
+      const moves = this.movesSinceProgress[r];
+      if (elapsed < this.deadlockTicks || moves * 4 < elapsed) continue;
+      // Moving in place: at least two moves per cell of the area it kept to.
+      const area = (this.boxMaxX[r] - this.boxMinX[r] + 1) * (this.boxMaxY[r] - this.boxMinY[r] + 1);
+      if (this.boxMinX[r] < 0 || 2 * area > moves) continue;
       // A goal that served a robot since (or serves one now) is a busy station, not a livelock.
       const goal = world.goalOf(r);
       const atGoal = world.occupant[goal];

@@ -183,6 +183,23 @@ describe('wait-for graph on hand-built positions', () => {
     }
   });
 
+  it('a robot on a long detour (moving on without getting closer, over new cells) is not a livelock', () => {
+    // 150 ticks driving east, away from its pickup at the west end: no progress and moving
+    // every tick, but it never comes back to a cell, so it is not moving in place.
+    const row = '#P' + '.'.repeat(170) + '#';
+    const { world, detector, at } = handWorld(['#'.repeat(row.length), row, '#'.repeat(row.length)], [[5, 1]], new Map([[0, [1, 1]]]));
+    for (let t = 0; t <= 150; t++) {
+      const here = world.robotCell[0];
+      const next = Int32Array.of(here + 1);
+      detector.evaluate(t, world, next, null, false);
+      world.occupant[here] = -1;
+      world.robotCell[0] = here + 1;
+      world.occupant[here + 1] = 0;
+    }
+    expect(world.robotCell[0]).toBe(at([156, 1]));
+    expect(kinds(detector, 151)).toEqual([]);
+  });
+
   it('fleet gridlock: tasks open and a robot free with no delivery for deadlockSeconds, once; a delivery resets the clock', () => {
     const { world, detector, at } = handWorld(['#######', '#P...D#', '#######'], [[3, 1]], new Map());
     world.addTask(0, at([1, 1]), at([5, 1]), -1, 1, 1, 0, TaskState.Open);
