@@ -194,9 +194,9 @@ export function benchTokenPassingSearches(robots: number, hours = 2): Row {
       unreachableSkips: counters.unreachableSkips ?? 0,
       reachabilityPasses: [...searchers].reduce((sum, s) => sum + s.reachabilityPasses, 0),
       microsPerSearch: Number(((1000 * searchMs) / calls).toFixed(2)),
-      searchShare: Number((searchMs / 1000 / record.wallSeconds).toFixed(3)),
-      agentStepsPerSecond: Math.round(record.agentSteps / record.wallSeconds),
-      realTimeFactor: Math.round((hours * 3600) / record.wallSeconds),
+      searchShare: Number((searchMs / 1000 / record.timing.wallSeconds).toFixed(3)),
+      agentStepsPerSecond: Math.round(record.agentSteps / record.timing.wallSeconds),
+      realTimeFactor: Math.round((hours * 3600) / record.timing.wallSeconds),
       delivered: record.delivered,
       collisions: record.collisions,
     };

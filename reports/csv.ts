@@ -5,6 +5,7 @@
 import { stringify } from 'csv-stringify/sync';
 import type { ReplicationRecord } from '../sim/engine.ts';
 import type { ReplicationMetrics, RunSummary } from './summary.ts';
+import { intervalLengthOf } from '../sim/metrics.ts';
 
 const round = (v: number | null, digits = 6): number | string => (v !== null && Number.isFinite(v) ? Number(v.toFixed(digits)) : '');
 
@@ -61,7 +62,7 @@ export function throughputSeriesCsv(records: ReplicationRecord[], cutIntervals: 
     const m = record.metrics;
     const tickSeconds = record.tickSeconds;
     for (let i = 0; i < m.intervalCount; i++) {
-      const ticks = m.intervalLength(i);
+      const ticks = intervalLengthOf(m, i);
       const hours = (ticks * tickSeconds) / 3600;
       rows.push({
         replication: record.replication,

@@ -27,13 +27,20 @@ export interface ReportInputRun {
  * used; `argv` the command's arguments.
  */
 export function writeReportInputs(directory: string, runs: ReportInputRun[], cutIntervals: readonly number[], argv: readonly string[]): void {
+  for (const file of reportInputContents(runs, cutIntervals, argv)) writeFileAtomic(path.join(directory, file.name), file.content);
+}
+
+/** The same files as name and text, for a caller that writes a whole result folder at once. */
+export function reportInputContents(runs: ReportInputRun[], cutIntervals: readonly number[], argv: readonly string[]): { name: (typeof reportInputFiles)[number]; content: string }[] {
   const compare = runs.length > 1;
   const layout = parseLayout(runs[0].scenario.layoutText);
   const policy = (run: ReportInputRun) => (compare ? run.scenario.policy.name : undefined);
-  writeFileAtomic(path.join(directory, 'cells.csv'), cellsCsv(runs.map((run) => ({ policy: policy(run), rows: cellRows(layout, run.records) }))));
-  writeFileAtomic(
-    path.join(directory, 'lead-times.csv'),
-    leadTimesCsv(runs.map((run, i) => ({ policy: policy(run), bins: leadTimeHistogram(leadTimesAfterWarmup(run.records, cutIntervals[i])) }))),
-  );
-  writeFileAtomic(path.join(directory, 'context.json'), `${toJson(runContext(runs[0].scenario, argv))}\n`);
+  return [
+    { name: 'cells.csv', content: cellsCsv(runs.map((run) => ({ policy: policy(run), rows: cellRows(layout, run.records) }))) },
+    {
+      name: 'lead-times.csv',
+      content: leadTimesCsv(runs.map((run, i) => ({ policy: policy(run), bins: leadTimeHistogram(leadTimesAfterWarmup(run.records, cutIntervals[i])) }))),
+    },
+    { name: 'context.json', content: `${toJson(runContext(runs[0].scenario, argv))}\n` },
+  ];
 }

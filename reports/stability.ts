@@ -27,6 +27,7 @@
  */
 import type { Scenario } from '../sim/model.ts';
 import type { ReplicationRecord } from '../sim/engine.ts';
+import { intervalLengthOf } from '../sim/metrics.ts';
 import { batchedSlopeInterval, intervalOf, type Interval } from './stats/index.ts';
 
 /** Growth below this share of the delivered rate is not called unstable (see above). */
@@ -78,7 +79,7 @@ export function replicationTrend(record: ReplicationRecord, from: number, to: nu
   const inSystem: number[] = [];
   for (let i = from; i < to; i++) {
     times.push((i + 0.5) * hoursPerInterval);
-    inSystem.push(m.tasksInSystemArea[i] / m.intervalLength(i));
+    inSystem.push(m.tasksInSystemArea[i] / intervalLengthOf(m, i));
   }
   const floor = materialGrowthShare * Math.max(0, Number.isFinite(throughputPerHour) ? throughputPerHour : 0);
   if (times.length < 3) {

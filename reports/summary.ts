@@ -282,8 +282,8 @@ export function summarize(scenario: Scenario, records: ReplicationRecord[], wall
   const inSystem = interval('tasksInSystem', (w) => w.tasksInSystem, 'nonNegative');
   const littleRight = (throughput.mean / 3600) * lead.mean;
   const agentSteps = records.reduce((s, r) => s + r.agentSteps, 0);
-  const planningSeconds = records.reduce((s, r) => s + r.planningSeconds, 0);
-  const engineSeconds = records.reduce((s, r) => s + r.wallSeconds, 0);
+  const planningSeconds = records.reduce((s, r) => s + r.timing.planningSeconds, 0);
+  const engineSeconds = records.reduce((s, r) => s + r.timing.wallSeconds, 0);
 
   const summary: RunSummary = {
     scenario: scenario.name,

@@ -111,6 +111,7 @@ export function parseScenarioText(text: string, sourcePath: string | null, overr
   const { name: policyName, ...policyOptions } = fields.policy;
   const run = fields.run ?? {};
   const handling = fields.handling ?? {};
+  checkRunSize(demand, run.hours ?? defaultRun.hours, run.sampleSeconds ?? defaultRun.sampleSeconds, layout, context);
   return {
     name: fields.name ?? (sourcePath === null ? 'scenario' : path.basename(sourcePath).replace(/\.ya?ml$/i, '')),
     sourcePath: absoluteSource,
@@ -261,6 +262,15 @@ const runSchema = strict(
     const hours = run.hours ?? defaultRun.hours;
     if (typeof run.warmup === 'number' && run.warmup >= hours) {
       context.addIssue({ code: 'custom', path: ['warmup'], message: `auto or a number of hours >= 0 and < run.hours (${hours})`, input: run.warmup });
+    }
+    // A sample longer than the run leaves no series to cut a warm-up from or to batch.
+    const sampleSeconds = run.sampleSeconds ?? defaultRun.sampleSeconds;
+    if (sampleSeconds > hours * 3600) {
+      if (run.sampleSeconds !== undefined) {
+        context.addIssue({ code: 'custom', path: ['sampleSeconds'], message: `a number of seconds > 0 and at most the run's length (run.hours ${hours} = ${hours * 3600} s)`, input: run.sampleSeconds });
+      } else {
+        context.addIssue({ code: 'custom', path: ['hours'], message: `a run at least as long as one metric sample (run.sampleSeconds, default ${sampleSeconds} s = ${Number((sampleSeconds / 3600).toPrecision(3))} h)`, input: hours });
+      }
     }
   });
 
@@ -536,6 +546,52 @@ function applyOverrides(raw: Record<string, unknown>, overrides: ScenarioOverrid
     }
   }
   return false;
+}
+
+// ---------------------------------------------------------------------------------------
+// Size limits: a run that could not fit in memory is refused before it starts. Fixed
+// limits (not this machine's free memory) so that a scenario accepted on a workstation is
+// accepted on every node of a cluster too.
+
+/** Tasks one replication may release: each costs about 60 bytes while the run lasts (task arrays and lead times), so this is about 0.6 GB per worker. */
+export const maxTasksPerReplication = 10_000_000;
+/** Numbers one replication's metric series may hold (8 bytes each: 400 MB). */
+export const maxSeriesValuesPerReplication = 50_000_000;
+
+/** Expected arrivals of a Poisson demand over `hours`, with its hourly profile repeating. */
+function expectedArrivals(tasksPerHour: number, profile: number[] | null, hours: number): number {
+  if (profile === null) return tasksPerHour * hours;
+  const cycle = profile.reduce((sum, multiplier) => sum + multiplier, 0);
+  const whole = Math.floor(hours / profile.length);
+  let total = whole * cycle;
+  let left = hours - whole * profile.length;
+  for (let h = 0; left > 0; h++, left--) total += profile[h] * Math.min(1, left);
+  return tasksPerHour * total;
+}
+
+function checkRunSize(demand: DemandSpec, hours: number, sampleSeconds: number, layout: Layout, context: Context): void {
+  const format = (n: number) => Math.round(n).toLocaleString('en-US');
+  if (demand.kind === 'poisson') {
+    const tasks = expectedArrivals(demand.tasksPerHour, demand.profile, hours);
+    if (tasks > maxTasksPerReplication) {
+      fail(
+        context,
+        ['demand', 'tasksPerHour'],
+        `got ${demand.tasksPerHour}, expected a rate that releases at most ${format(maxTasksPerReplication)} tasks per replication (the memory limit; this one releases about ${format(tasks)} in ${hours} h)`,
+      );
+    }
+  } else if (demand.kind === 'trace' && demand.tasks.length > maxTasksPerReplication) {
+    fail(context, ['demand', 'trace'], `got ${format(demand.tasks.length)} task rows, expected at most ${format(maxTasksPerReplication)} (the memory limit per replication)`);
+  }
+  const stations = layout.pickups.length + layout.drops.length;
+  const values = Math.ceil((hours * 3600) / sampleSeconds) * (8 + 2 * stations);
+  if (values > maxSeriesValuesPerReplication) {
+    fail(
+      context,
+      ['run', 'hours'],
+      `got ${hours}, expected a run whose metric series holds at most ${format(maxSeriesValuesPerReplication)} numbers (the memory limit; ${hours} h in ${sampleSeconds} s samples over ${stations} stations hold ${format(values)}; fewer hours or a longer run.sampleSeconds)`,
+    );
+  }
 }
 
 // ---------------------------------------------------------------------------------------

@@ -22,7 +22,7 @@ import { unreachable } from './distance-table.ts';
 import { World, Phase, TaskState, isHandling, isLoaded, type TaskStateCounts } from './world.ts';
 import type { Policy, PolicyFactory } from './policy.ts';
 import { CollisionValidator } from './validator.ts';
-import { MetricsRecorder } from './metrics.ts';
+import { MetricsRecorder, type RecordedMetrics } from './metrics.ts';
 import { DeadlockDetector } from './deadlock-detector.ts';
 import { ArrivalProcess, makeHandlingSampler, makePointChooser } from './demand.ts';
 import { RunError } from './errors.ts';
@@ -45,7 +45,14 @@ export interface TaskCounts extends TaskStateCounts {
   released: number;
 }
 
+/**
+ * Version of the ReplicationRecord shape. Records are plain data (no class instances) so
+ * they cross worker threads; bump this when a field changes meaning.
+ */
+export const replicationRecordVersion = 1;
+
 export interface ReplicationRecord {
+  recordVersion: typeof replicationRecordVersion;
   replication: number;
   tickSeconds: number;
   cellMeters: number;
@@ -53,7 +60,7 @@ export interface ReplicationRecord {
   endTick: number;
   /** The run's length in ticks as configured (`run.hours`). */
   plannedEndTick: number;
-  metrics: MetricsRecorder;
+  metrics: RecordedMetrics;
   /** Station cells, in the order of the station arrays in `metrics`. */
   stationCells: Int32Array;
   /** StationGroup per station (same order). */
@@ -81,13 +88,13 @@ export interface ReplicationRecord {
   agentSteps: number;
   motionTicks: number;
   events: number;
-  wallSeconds: number;
-  planningSeconds: number;
   policyCounters: Record<string, number>;
   /** Shelves at storage + on robots at the end (round trips); equals the storage count. */
   shelvesAccounted: number;
   /** Shelves standing on their storage points at the end (round trips). */
   shelvesAtStorage: number;
+  /** Wall-clock figures: the only part of a record that differs between identical runs. */
+  timing: { wallSeconds: number; planningSeconds: number };
 }
 
 export interface ReplicationHooks {
@@ -628,12 +635,13 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
   for (const c of layout.storage) home += shelfHome[c];
 
   return {
+    recordVersion: replicationRecordVersion,
     replication,
     tickSeconds,
     cellMeters: scenario.units.cellMeters,
     endTick,
     plannedEndTick,
-    metrics,
+    metrics: metrics.toRecorded(),
     stationCells,
     stationGroups,
     released,
@@ -652,11 +660,10 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     agentSteps: robots * endTick,
     motionTicks,
     events,
-    wallSeconds: (performance.now() - wallStart) / 1000,
-    planningSeconds: planningMs / 1000,
     policyCounters: policy.counters?.() ?? {},
     shelvesAccounted: home + shelvesOnRobots,
     shelvesAtStorage: home,
+    timing: { wallSeconds: (performance.now() - wallStart) / 1000, planningSeconds: planningMs / 1000 },
   };
 }
 

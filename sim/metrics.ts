@@ -64,6 +64,21 @@ function tickCounts(length: number, max: number): TickCounts {
   return new Float64Array(length);
 }
 
+/**
+ * What a finished replication keeps of its recorder: the public data fields (and getters'
+ * values) only, as a plain object (no methods, no prototype), so that it crosses worker
+ * threads (structured clone) unchanged. Derived from the class so that a new recorded field
+ * is carried along.
+ */
+export type RecordedMetrics = {
+  readonly [K in keyof MetricsRecorder as MetricsRecorder[K] extends (...args: never[]) => unknown ? never : K]: MetricsRecorder[K];
+};
+
+/** Length in ticks of sample interval i (the last may be partial). */
+export function intervalLengthOf(metrics: Pick<RecordedMetrics, 'intervalTicks' | 'endTick'>, i: number): number {
+  return Math.min(metrics.intervalTicks, metrics.endTick - i * metrics.intervalTicks);
+}
+
 export class MetricsRecorder {
   /** Whole or partial sample intervals up to `endTick`. */
   intervalCount: number;
@@ -141,7 +156,17 @@ export class MetricsRecorder {
 
   /** Length in ticks of interval i (the last may be partial). */
   intervalLength(i: number): number {
-    return Math.min(this.intervalTicks, this.endTick - i * this.intervalTicks);
+    return intervalLengthOf(this, i);
+  }
+
+  /** The recorded data as a plain object (call after finish()): every field, and the value of every getter. */
+  toRecorded(): RecordedMetrics {
+    const plain: Record<string, unknown> = {};
+    for (const [key, value] of Object.entries(this)) plain[key] = value;
+    for (const [key, descriptor] of Object.entries(Object.getOwnPropertyDescriptors(Object.getPrototypeOf(this)))) {
+      if (descriptor.get) plain[key] = (this as unknown as Record<string, unknown>)[key];
+    }
+    return plain as unknown as RecordedMetrics;
   }
 
   /** Lead time in ticks of every task delivered before the end, in delivery order (a view, not a copy). */

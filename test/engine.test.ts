@@ -267,7 +267,7 @@ describe('determinism', () => {
     };
     const strip = (rs: ReturnType<typeof runReplications>) => {
       expectClean(rs);
-      return JSON.stringify(rs.map(({ wallSeconds: _w, planningSeconds: _p, metrics, ...rest }) => ({ ...rest, d: Array.from(metrics.deliveries), l: metrics.leadTicks })));
+      return JSON.stringify(rs.map(({ timing: _t, metrics, ...rest }) => ({ ...rest, d: Array.from(metrics.deliveries), l: metrics.leadTicks })));
     };
     const a = strip(runReplications(makeScenario({ ...base, seed: 7 })));
     const b = strip(runReplications(makeScenario({ ...base, seed: 7 })));

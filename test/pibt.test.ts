@@ -103,7 +103,7 @@ describe('pibt at scale', () => {
     const { record, sharedCells, swaps } = runWatched(scenario);
     console.info(
       `pibt 150 x 80 hall, 1,000 robots, 10 min: ${record.delivered} delivered, ${episodeSummary(record)}, ` +
-        `${Math.round(record.agentSteps / record.wallSeconds)} agent-steps/s`,
+        `${Math.round(record.agentSteps / record.timing.wallSeconds)} agent-steps/s`,
     );
     expect(record.collisions).toBe(0);
     expect(record.illegalSteps).toBe(0);
