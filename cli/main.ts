@@ -113,6 +113,29 @@ program
   });
 
 program
+  .command('sweep')
+  .description('run every point of a sweep plan (DESIGN §8) on worker threads, appending each finished run to runs.jsonl; rerun to resume after a crash')
+  .argument('<plan>', 'sweep plan YAML file: scenario, vary (dotted paths to lists), replications')
+  .requiredOption('--out <dir>', 'results folder: plan.json, runs.jsonl, runs.csv, summary.csv')
+  .addOption(new Option('--workers <k>', 'worker threads (default: one per core)'))
+  .addOption(new Option('--shard <i/n>', 'run only shard i of n (runs k with k mod n = i); default from SLURM_ARRAY_TASK_ID/COUNT or JOB_COMPLETION_INDEX/JOB_COMPLETIONS, else the whole plan'))
+  .action(async (planPath: string, options: { out: string; workers?: string; shard?: string }) => {
+    const { sweepCommand } = await import('./commands/sweep.ts');
+    await sweepCommand(planPath, options);
+  });
+
+program
+  .command('merge')
+  .description('join sweep shard folders of one plan into one folder (refuses different plans, missing or doubled runs)')
+  .argument('<dirs...>', 'sweep output folders (shards)')
+  .requiredOption('--out <dir>', 'merged results folder')
+  .addOption(new Option('--partial', 'allow missing runs and keep the first copy of a doubled one'))
+  .action(async (folders: string[], options: { out: string; partial?: boolean }) => {
+    const { mergeCommand } = await import('./commands/merge.ts');
+    mergeCommand(folders, options);
+  });
+
+program
   .command('check')
   .description('summarize a layout and test it: connected, well-formed (Ma et al. 2017), and if not, which two endpoints break it')
   .argument('<scenario>', 'scenario YAML file')

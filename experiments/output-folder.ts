@@ -2,18 +2,19 @@
  * All-or-nothing result folders. Every file of a result set is written first into a staging
  * folder inside the target folder (same file system, so renames are atomic), flushed to
  * disk; only then are the files swapped in. Before the swap every target is checked (a
- * folder where a file should go is refused), and old files are moved aside rather than
- * overwritten, so a failure half-way puts them back: after any failure the folder holds
+ * folder where a file should go is refused), and old files are kept aside (hard links)
+ * until all new ones are in, so a failure half-way puts them back: after any failure the folder holds
  * exactly what it held before, and the message names the path that failed.
  */
-import { closeSync, fsyncSync, lstatSync, mkdirSync, openSync, renameSync, rmSync, writeSync } from 'node:fs';
+import { closeSync, copyFileSync, fsyncSync, linkSync, lstatSync, mkdirSync, openSync, renameSync, rmSync, writeSync } from 'node:fs';
 import path from 'node:path';
 import { InputError } from '../sim/errors.ts';
 
 export interface OutputFile {
   /** File name inside the folder (no subfolders). */
   name: string;
-  content: string;
+  /** The text, or a writer that streams it in pieces (large files: memory stays bounded). */
+  content: string | ((write: (text: string) => void) => void);
 }
 
 let stagingCount = 0;
@@ -52,10 +53,11 @@ export function checkOutputFolder(directory: string, names: readonly string[], o
 }
 
 /** Writes a file and flushes it to disk. */
-export function writeDurable(file: string, content: string): void {
+export function writeDurable(file: string, content: OutputFile['content']): void {
   const fd = openSync(file, 'w');
   try {
-    writeSync(fd, content);
+    if (typeof content === 'string') writeSync(fd, content);
+    else content((text) => void writeSync(fd, text));
     fsyncSync(fd);
   } finally {
     closeSync(fd);
@@ -103,20 +105,26 @@ export function writeOutputFolder(directory: string, files: readonly OutputFile[
       for (const file of files) {
         const target = path.join(directory, file.name);
         const backup = path.join(staging, `${file.name}.previous`);
+        // The old file is kept as a hard link (or a copy) and the new one renamed over it,
+        // so the target path never goes missing, even if the process is killed here.
         let existed = true;
         try {
-          renameSync(target, backup);
+          try {
+            linkSync(target, backup);
+          } catch (error) {
+            if ((error as NodeJS.ErrnoException).code === 'ENOENT') throw error;
+            copyFileSync(target, backup);
+          }
         } catch (error) {
           if ((error as NodeJS.ErrnoException).code !== 'ENOENT') throw Object.assign(new Error(target), { cause: error, target });
           existed = false;
         }
-        if (existed) undo.push(() => renameSync(backup, target));
         try {
           renameSync(path.join(staging, file.name), target);
         } catch (error) {
           throw Object.assign(new Error(target), { cause: error, target });
         }
-        undo.push(existed ? () => renameSync(target, path.join(staging, file.name)) : () => rmSync(target, { force: true }));
+        undo.push(existed ? () => renameSync(backup, target) : () => rmSync(target, { force: true }));
       }
     } catch (error) {
       for (const step of undo.reverse()) {

@@ -31,6 +31,12 @@ export interface ScenarioOverrides {
   /** Trace CSV path, relative to the current directory (not the scenario's folder). */
   trace?: string;
   warmup?: 'auto' | number;
+  /**
+   * Any field by its path (a sweep's `vary`), applied after the options above and checked
+   * like a file field. `label` replaces `<file>: <field>` in messages (e.g. the sweep file
+   * and line that set it).
+   */
+  fields?: { path: string[]; value: unknown; label: string }[];
 }
 
 /** Reads and validates a scenario file. Every failure is an InputError with a one-line message. */
@@ -328,6 +334,8 @@ interface Context {
   lineCounter: LineCounter;
   /** Dotted field path -> the command-line option that set it. */
   optionOfPath: Map<string, string>;
+  /** Dotted field path -> the full label of whatever set it (a sweep file line). */
+  labelOfPath?: Map<string, string>;
   raw: Record<string, unknown>;
 }
 
@@ -383,7 +391,8 @@ function pickProblem(problems: Problem[], context: Context): Problem {
   let best = problems[0];
   let bestRank = [Infinity, Infinity];
   for (const problem of problems) {
-    const line = context.optionOfPath.has(dotted(problem.path)) ? 0 : (lineOfPath(context, problem.path) ?? Infinity);
+    const set = context.optionOfPath.has(dotted(problem.path)) || [...(context.labelOfPath?.keys() ?? [])].some((key) => dotted(problem.path).startsWith(key));
+    const line = set ? 0 : (lineOfPath(context, problem.path) ?? Infinity);
     const rank = [problem.unknownKey === undefined ? 1 : 0, line];
     if (rank[0] < bestRank[0] || (rank[0] === bestRank[0] && rank[1] < bestRank[1])) {
       best = problem;
@@ -400,6 +409,11 @@ function formatProblem(problem: Problem, context: Context): string {
 
 /** `<file>: <field> (line N)`, or `<file>: --option` when a command-line option set the field. */
 function fieldLabel(context: Context, fieldPath: (string | number)[], line?: number | null): string {
+  // A field set by a sweep (or inside a mapping it set) is named by the sweep's label.
+  for (let length = fieldPath.length; length > 0 && context.labelOfPath; length--) {
+    const label = context.labelOfPath.get(dotted(fieldPath.slice(0, length)));
+    if (label) return length === fieldPath.length ? label : `${label} at ${dotted(fieldPath.slice(length))}`;
+  }
   const option = context.optionOfPath.get(dotted(fieldPath));
   if (option) return `${context.file}: ${option}`;
   const where = line === undefined ? lineOfPath(context, fieldPath) : line;
@@ -533,6 +547,25 @@ function applyOverrides(raw: Record<string, unknown>, overrides: ScenarioOverrid
       delete demand.trace;
       demand.kind = 'poisson';
     }
+  }
+  for (const field of overrides.fields ?? []) {
+    let parent: Record<string, unknown> = raw;
+    for (let i = 0; i < field.path.length - 1; i++) {
+      const key = field.path[i];
+      if (parent[key] === undefined) parent[key] = {};
+      const next = parent[key];
+      if (!isPlainObject(next)) {
+        throw new InputError(`${field.label}: got a path through ${field.path.slice(0, i + 1).join('.')}, which is ${describeValue(next)}, expected a path to a field inside a mapping`);
+      }
+      parent = next;
+    }
+    const last = field.path[field.path.length - 1];
+    // A new policy name drops the file's options of the old policy (they would not fit), as --policy does.
+    if (field.path.length === 2 && field.path[0] === 'policy' && last === 'name' && parent.name !== field.value) {
+      for (const key of Object.keys(parent)) if (!(overrides.fields ?? []).some((f) => f.path[0] === 'policy' && f.path[1] === key)) delete parent[key];
+    }
+    parent[last] = field.value;
+    (context.labelOfPath ??= new Map()).set(field.path.join('.'), field.label);
   }
   if (overrides.trace !== undefined) {
     const demand = set('demand', 'trace', overrides.trace, '--trace');

@@ -1,0 +1,54 @@
+/**
+ * Replications on worker threads (tinypool, a small well-kept worker-thread pool). One pool
+ * per command; each task is one replication (experiments/replication-worker.ts), so the
+ * cores stay busy whatever the mix of parameter points. Records come back as plain data
+ * (structured clone); a worker's failure is rethrown here with its error class.
+ */
+import os from 'node:os';
+import { fileURLToPath } from 'node:url';
+import Tinypool from 'tinypool';
+import type { Scenario } from '../sim/model.ts';
+import type { ReplicationRecord } from '../sim/engine.ts';
+import { InputError, RunError } from '../sim/errors.ts';
+import type { ReplicationReply, ReplicationTask } from './replication-worker.ts';
+
+/** Worker threads to use when the user does not say: one per core. */
+export function defaultWorkers(): number {
+  return Math.max(1, typeof os.availableParallelism === 'function' ? os.availableParallelism() : os.cpus().length);
+}
+
+/** Validates `--workers`: a positive integer. */
+export function parseWorkers(text: string | undefined, option = '--workers'): number {
+  if (text === undefined) return defaultWorkers();
+  const value = text.trim() === '' ? NaN : Number(text);
+  if (!Number.isSafeInteger(value) || value < 1 || value > 1024) throw new InputError(`${option}: got ${JSON.stringify(text)}, expected a whole number of worker threads from 1 to 1024`);
+  return value;
+}
+
+export interface ReplicationPool {
+  readonly workers: number;
+  run(scenarioKey: string, scenario: Scenario, replication: number): Promise<ReplicationRecord>;
+  close(): Promise<void>;
+}
+
+const workerFile = fileURLToPath(new URL('./replication-worker.js', import.meta.url));
+
+export function createPool(workers: number): ReplicationPool {
+  const pool = new Tinypool({ filename: workerFile, minThreads: workers, maxThreads: workers, idleTimeout: 60_000 });
+  return {
+    workers,
+    async run(scenarioKey, scenario, replication) {
+      const task: ReplicationTask = { scenarioKey, scenario, replication };
+      const reply = (await pool.run(task)) as ReplicationReply;
+      if (reply.ok) return reply.record;
+      if (reply.kind === 'input') throw new InputError(reply.message);
+      if (reply.kind === 'run') throw new RunError(reply.message);
+      const error = new Error(reply.message);
+      if (reply.stack) error.stack = reply.stack;
+      throw error;
+    },
+    async close() {
+      await pool.destroy();
+    },
+  };
+}
