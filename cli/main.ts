@@ -113,6 +113,27 @@ program
   });
 
 program
+  .command('size')
+  .description('the smallest fleet that is stable at a target rate with its throughput interval reaching it; with the hand formula, capacity headroom and the knee')
+  .argument('<scenario>', 'scenario YAML file')
+  .requiredOption('--target <tph>', 'target rate in tasks per hour (Poisson with the scenario profile, pickups and drops; a trace is scaled to it)')
+  .addOption(new Option('--min <n>', 'smallest fleet to consider (default 1; fleets below the hand-formula lower bound are never run)'))
+  .addOption(new Option('--max <n>', 'largest fleet to consider (default max(2 x hand formula, hand formula + 10))'))
+  .addOption(new Option('--policy <name>', 'dispatch-and-routing policy (overrides policy.name)'))
+  .addOption(new Option('--lead-p95 <seconds>', 'service level: lead-time p95 must not exceed this'))
+  .addOption(new Option('--hours <h>', 'simulated hours per replication (overrides run.hours)'))
+  .addOption(new Option('--reps <r>', 'replications per fleet to start with, doubled where a verdict is unsure (overrides run.replications; default 5)'))
+  .addOption(new Option('--seed <s>', 'base random seed (overrides run.seed)'))
+  .addOption(new Option('--confidence <c>', 'confidence level of the intervals (overrides run.confidence; default 0.95)'))
+  .addOption(new Option('--warmup <hours|auto>', "warm-up to cut (overrides run.warmup)"))
+  .addOption(new Option('--workers <k>', 'worker threads (default: one per core)'))
+  .addOption(new Option('--json', 'print one JSON document on stdout instead of the table'))
+  .action(async (scenarioPath: string, options: RunOptionValues & { target: string; min?: string; max?: string; leadP95?: string; confidence?: string; workers?: string }) => {
+    const { sizeCommand } = await import('./commands/size.ts');
+    await sizeCommand(scenarioPath, options, overridesFrom({ hours: options.hours, reps: options.reps, seed: options.seed, warmup: options.warmup, policy: options.policy }));
+  });
+
+program
   .command('sweep')
   .description('run every point of a sweep plan (DESIGN §8) on worker threads, appending each finished run to runs.jsonl; rerun to resume after a crash')
   .argument('<plan>', 'sweep plan YAML file: scenario, vary (dotted paths to lists), replications')
