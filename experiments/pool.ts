@@ -11,6 +11,8 @@ import type { Scenario } from '../sim/model.ts';
 import type { ReplicationRecord } from '../sim/engine.ts';
 import { InputError, RunError } from '../sim/errors.ts';
 import type { ReplicationReply, ReplicationTask } from './replication-worker.ts';
+import type { SimulationSetup } from '../sim/engine.ts';
+import { checkedReplication, prepareSetup } from './replications.ts';
 
 /** Worker threads to use when the user does not say: one per core. */
 export function defaultWorkers(): number {
@@ -49,6 +51,27 @@ export function createPool(workers: number): ReplicationPool {
     },
     async close() {
       await pool.destroy();
+    },
+  };
+}
+
+/**
+ * The same interface run in this thread, one replication at a time: for one worker (no
+ * thread start-up), and for tests that bring their own setup (a policy built in the test).
+ */
+export function createInlinePool(prepare: (scenario: Scenario) => SimulationSetup = (scenario) => prepareSetup(scenario)): ReplicationPool {
+  const setups = new Map<string, SimulationSetup>();
+  return {
+    workers: 1,
+    async run(scenarioKey, scenario, replication) {
+      let setup = setups.get(scenarioKey);
+      if (!setup) setups.set(scenarioKey, (setup = prepare(scenario)));
+      // Yield first, so that callers awaiting several runs see them one after another.
+      await Promise.resolve();
+      return checkedReplication(setup, replication);
+    },
+    async close() {
+      setups.clear();
     },
   };
 }

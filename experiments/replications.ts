@@ -25,7 +25,7 @@ export function prepareSetup(scenario: Scenario, policyField = `${scenario.sourc
 }
 
 /** Throws RunError when the validator saw a collision or an illegal step: the policy is defective. */
-export function checkRecord(scenario: Scenario, record: ReplicationRecord): void {
+export function checkRecord(scenario: Pick<Scenario, 'policy'>, record: ReplicationRecord): void {
   if (record.collisions === 0 && record.illegalSteps === 0) return;
   throw new RunError(
     `the collision validator counted ${record.collisions} collisions and ${record.illegalSteps} illegal steps in replication ${record.replication} ` +
@@ -36,7 +36,7 @@ export function checkRecord(scenario: Scenario, record: ReplicationRecord): void
 /** One replication with every check of the loop applied. */
 export function checkedReplication(setup: SimulationSetup, replication: number, hooks: ReplicationHooks = {}): ReplicationRecord {
   const record = runReplication(setup, replication, hooks);
-  checkRecord(setup.scenario, record);
+  checkRecord({ policy: { ...setup.scenario.policy, name: setup.policy.name } }, record);
   return record;
 }
 

@@ -15,14 +15,14 @@
  * fleets differ by the fleet, not by luck.
  */
 import type { Scenario } from '../sim/model.ts';
-import type { ReplicationRecord } from '../sim/engine.ts';
+import type { ReplicationRecord, SimulationSetup } from '../sim/engine.ts';
 import { InputError } from '../sim/errors.ts';
 import { summarize, type RunSummary } from '../reports/summary.ts';
 import type { Interval } from '../reports/stats/index.ts';
 import { safetyNote } from '../reports/safety.ts';
 import { prepareSetup } from './replications.ts';
 import { handFormulaFor, type HandFormula } from './hand-formula.ts';
-import { createPool, type ReplicationPool } from './pool.ts';
+import { createInlinePool, createPool, type ReplicationPool } from './pool.ts';
 import { scenarioKey } from './run-id.ts';
 import { searchFleetSize, type SizeFigures } from './size-search.ts';
 
@@ -38,12 +38,16 @@ export interface SizeOptions {
   kneeShare?: number;
   /** Called as fleets are evaluated (robots, replications, what). */
   progress?: (text: string) => void;
+  /** Builds a scenario's setup (default: the registry's policy); a test may bring its own policy, then runs stay in this thread. */
+  prepare?: (scenario: Scenario) => SimulationSetup;
 }
 
 export interface CurvePoint {
   robots: number;
   replications: number;
   throughputPerHour: Interval;
+  /** Tasks per hour released in the measured window (what the fleet was offered). */
+  offeredPerHour: number;
   throughputPerRobot: number;
   leadTimeSeconds: Interval;
   leadTimeP95Seconds: Interval;
@@ -108,19 +112,16 @@ export function demandAtTarget(scenario: Scenario, target: number): Scenario {
   return { ...scenario, demand: { ...demand, tasks: demand.tasks.map((t) => ({ ...t, releaseSeconds: t.releaseSeconds * factor })) } };
 }
 
-/** The same floor with a task always ready for every robot: what a fleet can deliver at most. */
-export function saturatedVersion(scenario: Scenario): Scenario {
+/**
+ * The same floor with a task always ready for every robot: what a fleet can deliver at
+ * most. Null for a trace: its tasks pair pickups with drops, which saturated demand (drawn
+ * point by point) cannot keep, so its capacity is not measured.
+ */
+export function saturatedVersion(scenario: Scenario): Scenario | null {
   const demand = scenario.demand;
   if (demand.kind === 'saturated') return scenario;
   if (demand.kind === 'poisson') return { ...scenario, demand: { kind: 'saturated', mode: demand.mode, pickups: demand.pickups, drops: demand.drops } };
-  // A trace's pickups and drops, as weights.
-  const pickups = new Map<number, number>();
-  const drops = new Map<number, number>();
-  for (const task of demand.tasks) {
-    pickups.set(task.pickup, (pickups.get(task.pickup) ?? 0) + 1);
-    drops.set(task.drop, (drops.get(task.drop) ?? 0) + 1);
-  }
-  return { ...scenario, demand: { kind: 'saturated', mode: demand.mode, pickups: { kind: 'weights', weights: pickups }, drops: { kind: 'weights', weights: drops } } };
+  return null;
 }
 
 /** Keeps every replication run for each fleet size and summarizes on demand. */
@@ -138,7 +139,7 @@ class FleetRuns {
     return { ...this.base, fleet: { robots } };
   }
 
-  async summary(robots: number, replications: number): Promise<{ summary: RunSummary; perReplication: unknown[] }> {
+  async summary(robots: number, replications: number): Promise<{ summary: RunSummary; perReplication: unknown[]; offeredPerHour: number }> {
     const have = this.records.get(robots) ?? [];
     if (have.length < replications) {
       const scenario = this.scenarioFor(robots);
@@ -149,8 +150,18 @@ class FleetRuns {
       have.push(...more);
       this.records.set(robots, have);
     }
-    const parts = summarize(this.scenarioFor(robots), have.slice(0, replications), 0);
-    return { summary: parts.summary, perReplication: parts.perReplication };
+    const used = have.slice(0, replications);
+    const parts = summarize(this.scenarioFor(robots), used, 0);
+    // Tasks released after the warm-up cut, per hour of the window, averaged over replications.
+    let offered = 0;
+    for (const record of used) {
+      const m = record.metrics;
+      let released = 0;
+      for (let i = parts.cutIntervals; i < m.intervalCount; i++) released += m.releases[i];
+      const windowHours = ((record.endTick - parts.cutIntervals * m.intervalTicks) * record.tickSeconds) / 3600;
+      offered += released / windowHours / used.length;
+    }
+    return { summary: parts.summary, perReplication: parts.perReplication, offeredPerHour: offered };
   }
 }
 
@@ -163,7 +174,8 @@ const isInterval = (v: unknown) => v !== null && typeof v === 'object' && 'mean'
 export async function sizeFleet(scenarioAtTarget: Scenario, options: SizeOptions): Promise<SizeDocument> {
   const started = performance.now();
   const scenario = demandAtTarget(scenarioAtTarget, options.target);
-  const setup = prepareSetup(scenario);
+  const prepare = options.prepare ?? ((s: Scenario) => prepareSetup(s));
+  const setup = prepare(scenario);
   const hand = handFormulaFor(setup, options.target);
   const floorCells = setup.layout.floorCells.length;
   const min = Math.max(1, options.min ?? 1);
@@ -206,11 +218,12 @@ export async function sizeFleet(scenarioAtTarget: Scenario, options: SizeOptions
     return document;
   }
 
-  const pool = createPool(options.workers);
+  const pool = options.workers > 1 && !options.prepare ? createPool(options.workers) : createInlinePool(prepare);
   try {
     const atTarget = new FleetRuns(scenario, pool, options.progress);
-    const capacityRuns = new FleetRuns(saturatedVersion(scenario), pool, options.progress, 'saturated');
-    const figuresOf = (summary: RunSummary, perReplication: unknown[]): SizeFigures => {
+    const saturated = saturatedVersion(scenario);
+    const capacityRuns = saturated ? new FleetRuns(saturated, pool, options.progress, 'saturated') : null;
+    const figuresOf = (summary: RunSummary, perReplication: unknown[], offeredPerHour: number): SizeFigures => {
       const loose = summary as unknown as Record<string, unknown>;
       return {
         robots: summary.robots,
@@ -219,15 +232,18 @@ export async function sizeFleet(scenarioAtTarget: Scenario, options: SizeOptions
         stable: optional<boolean>(loose.stable, (v) => typeof v === 'boolean'),
         replicationStable: perReplication.map((w) => optional<boolean>((w as Record<string, unknown>).stable, (v) => typeof v === 'boolean')),
         leadTimeP95Seconds: summary.leadTimeP95Seconds,
+        offeredPerHour,
       };
     };
     const summaries = new Map<number, RunSummary>();
+    const offered = new Map<number, number>();
     const result = await searchFleetSize({
       evaluator: {
         async evaluate(robots, replications) {
-          const { summary, perReplication } = await atTarget.summary(robots, replications);
+          const { summary, perReplication, offeredPerHour } = await atTarget.summary(robots, replications);
           summaries.set(robots, summary);
-          return figuresOf(summary, perReplication);
+          offered.set(robots, offeredPerHour);
+          return figuresOf(summary, perReplication, offeredPerHour);
         },
       },
       target: options.target,
@@ -247,6 +263,7 @@ export async function sizeFleet(scenarioAtTarget: Scenario, options: SizeOptions
         robots,
         replications: s.replications,
         throughputPerHour: s.throughputPerHour,
+        offeredPerHour: offered.get(robots)!,
         throughputPerRobot: s.throughputPerHour.mean / robots,
         leadTimeSeconds: s.leadTimeSeconds,
         leadTimeP95Seconds: s.leadTimeP95Seconds,
@@ -260,12 +277,13 @@ export async function sizeFleet(scenarioAtTarget: Scenario, options: SizeOptions
       });
     }
     if (result.recommended === null) {
-      const best = document.curve[document.curve.length - 1];
+      // The fleet that came closest: the highest throughput estimate.
+      const best = document.curve.reduce((a, b) => (b.throughputPerHour.mean > a.throughputPerHour.mean ? b : a));
       const lowerBound = hand.lowerBoundRobots;
       document.reason =
         lowerBound > max
           ? `even with no empty travel the target needs at least ${lowerBound} robots (handling and loaded travel alone), above --max ${max}`
-          : `no fleet from ${Math.max(min, Math.min(max, lowerBound))} to ${max} robots meets ${options.target} tasks/h: at ${best.robots} robots ${best.because} (throughput ${best.throughputPerHour.mean.toFixed(0)}${best.throughputPerHour.halfWidth === null ? '' : ` ± ${best.throughputPerHour.halfWidth.toFixed(0)}`} tasks/h)`;
+          : `no fleet from ${Math.max(min, Math.min(max, lowerBound))} to ${max} robots meets ${options.target} tasks/h; the closest, ${best.robots} robots, delivers ${best.throughputPerHour.mean.toFixed(0)}${best.throughputPerHour.halfWidth === null ? '' : ` ± ${best.throughputPerHour.halfWidth.toFixed(0)}`} tasks/h (${best.because})`;
     }
 
     // Capacity curve around the answer (or the largest fleet tried): headroom, knee, congestion.
@@ -274,8 +292,8 @@ export async function sizeFleet(scenarioAtTarget: Scenario, options: SizeOptions
     const capacityReplications = Math.max(2, Math.min(options.replications, 5));
     let previous: CapacityPoint | null = null;
     let previousInterval: Interval | null = null;
-    for (const robots of sizes) {
-      const { summary } = await capacityRuns.summary(robots, capacityReplications);
+    for (const robots of capacityRuns ? sizes : []) {
+      const { summary } = await capacityRuns!.summary(robots, capacityReplications);
       const point: CapacityPoint = {
         robots,
         replications: summary.replications,
@@ -302,7 +320,7 @@ export async function sizeFleet(scenarioAtTarget: Scenario, options: SizeOptions
         document.capacity = { robots: atAnswer.robots, throughputPerHour: atAnswer.throughputPerHour, headroomPercent: Number.isFinite(mean) ? (mean / options.target - 1) * 100 : null };
       }
     }
-    document.runs = { atTarget: atTarget.runs, capacity: capacityRuns.runs };
+    document.runs = { atTarget: atTarget.runs, capacity: capacityRuns?.runs ?? 0 };
   } finally {
     await pool.close();
   }
