@@ -165,7 +165,7 @@ export function loadSweepPlan(file: string): SweepPlan {
       prepareSetup(scenario);
     } catch (error) {
       if (!(error instanceof InputError)) throw error;
-      const where = vary.length > 0 ? `${file}: point ${canonicalJson(parameters)}` : `${file}: scenario`;
+      const where = vary.length > 0 ? `${file}: point ${JSON.stringify(parameters)}` : `${file}: scenario`;
       throw new InputError(`${where}: ${error.message.replace(/^[^:]*: policy\.name: /, 'policy.name: ')}`);
     }
     points.push({ index, parameters, scenario, key: scenarioKey(scenario) });
@@ -178,7 +178,7 @@ export function loadSweepPlan(file: string): SweepPlan {
       const id = runId(point.scenario, replication);
       const earlier = ids.get(id);
       if (earlier !== undefined) {
-        throw new InputError(`${file}: points ${canonicalJson(points[runs[earlier].point].parameters)} and ${canonicalJson(point.parameters)} simulate the same thing, expected every point to differ`);
+        throw new InputError(`${file}: points ${JSON.stringify(points[runs[earlier].point].parameters)} and ${JSON.stringify(point.parameters)} simulate the same thing, expected every point to differ`);
       }
       ids.set(id, runs.length);
       runs.push({ index: runs.length, id, point: point.index, replication });

@@ -136,9 +136,8 @@ function lockFolder(directory: string): () => void {
 
 function checkSameSweep(stored: PlanDocument, wanted: PlanDocument, directory: string): void {
   if (stored.planHash !== wanted.planHash || stored.resultFormat !== wanted.resultFormat) {
-    const was = `${stored.points.length} points x ${stored.replications} replications varying ${stored.vary.join(', ') || 'nothing'}`;
-    const now = `${wanted.points.length} x ${wanted.replications} varying ${wanted.vary.join(', ') || 'nothing'}`;
-    const what = was.replace(/ replications/, '') !== now ? `it holds ${was}, this plan has ${now}` : `same shape, but other values or a changed scenario (${stored.scenario})`;
+    const shape = (d: PlanDocument) => `${d.points.length} points x ${d.replications} replications varying ${d.vary.join(', ') || 'nothing'}`;
+    const what = shape(stored) !== shape(wanted) ? `it holds ${shape(stored)}, this plan has ${shape(wanted)}` : `same shape, but other values or a changed scenario (${stored.scenario})`;
     throw new InputError(`--out: ${JSON.stringify(directory)} holds results of another sweep plan (${what}): expected a new --out folder, or the unchanged plan and scenario to resume`);
   }
   const shardText = (s: PlanDocument['shard']) => (s ? `shard ${s.index}/${s.count}` : 'the whole plan');
