@@ -10,7 +10,7 @@
  *   npm run bench                 table on stdout
  *   npm run bench -- --json       one JSON array of rows
  *   npm run bench -- --quick      skip the slow rows (munkres-js at 1000, pibt at 1,000 and 10,000 robots, the replay viewer, memory)
- *   npm run bench -- --only NAME  only rows whose name starts with NAME (engine, policy, pibt, replay, search, assignment, memory)
+ *   npm run bench -- --only NAME  only rows whose name starts with NAME (engine, policy, pibt, replay, search, assignment, memory, sweep, size)
  */
 import { loadScenarioFile } from '../scenarios/load.ts';
 import { prepareSetup } from '../experiments/replications.ts';
@@ -25,7 +25,7 @@ const onlyIndex = args.indexOf('--only');
 const only = onlyIndex >= 0 ? args[onlyIndex + 1] : null;
 const wanted = (name: string) => only === null || name.startsWith(only);
 
-type Row = Record<string, string | number | boolean>;
+type Row = Record<string, string | number | boolean | null>;
 const rows: Row[] = [];
 /** Progress on stderr (the JSON document stays alone on stdout). */
 const log = (text: string) => {
@@ -98,6 +98,20 @@ if (wanted('memory') && !quick && policies.some((p) => p.name === 'pibt')) {
 if (wanted('assignment')) {
   const { benchAssignment } = await import('./assignment.ts');
   for (const row of await benchAssignment(quick ? [200, 500] : [200, 500, 1000])) rows.push(row as unknown as Row);
+}
+
+if (wanted('sweep')) {
+  const { benchSweep } = await import('./sweep.ts');
+  for (const row of await benchSweep([1, 2])) {
+    log(`sweep ${row.workers} workers: ${row.runsPerMinute} runs/min`);
+    rows.push(row as Row);
+  }
+}
+if (wanted('size')) {
+  const { benchSize } = await import('./sweep.ts');
+  const row = await benchSize();
+  log(`size: demo at ${row.target} tasks/h in ${row.wallSeconds} s`);
+  rows.push(row as Row);
 }
 
 if (json) {
