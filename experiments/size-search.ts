@@ -9,8 +9,9 @@
  * the fleet falls short; when the arrivals in the measured window fell short of the target,
  * as a trace's can, the bar is the work offered), and, with a service level, its lead-time p95 interval is not
  * above the limit. A verdict is unsure when an interval straddles its threshold in the way
- * that decides (replications disagree on stability, the throughput estimate is materially
- * short of the target but its interval reaches it, the p95 interval holds the limit); an
+ * that decides (the run is called stable but its backlog-growth interval still reaches the
+ * growth the stability test calls material, the throughput estimate is materially short of
+ * the target but its interval reaches it, the p95 interval holds the limit); an
  * unsure fleet gets more replications (doubling, up to `maxReplications`), and one still
  * unsure then counts as not meeting the target: a recommendation must rest on evidence.
  *
@@ -29,8 +30,10 @@ export interface SizeFigures {
   throughputPerHour: Interval;
   /** Bounded backlog over the replications; null when not assessed. */
   stable: boolean | null;
-  /** Each replication's own verdict (null: not assessed). */
-  replicationStable: (boolean | null)[];
+  /** Trend of tasks in system after the warm-up (tasks/h) over the replications; null when not assessed. */
+  backlogGrowthPerHour: Interval | null;
+  /** Growth the stability verdict calls material (tasks/h); null when not assessed. */
+  materialGrowthPerHour: number | null;
   leadTimeP95Seconds: Interval;
   /**
    * Tasks per hour released in the measured window (mean over replications). Random or
@@ -67,8 +70,12 @@ export function judge(figures: SizeFigures, target: number, leadP95Limit: number
     if (!Number.isFinite(p95.mean)) return { verdict: 'fails', because: 'no lead time measured' };
     if ((p95.low ?? p95.mean) > leadP95Limit) return { verdict: 'fails', because: `lead-time p95 above ${leadP95Limit} s` };
   }
-  const votes = figures.replicationStable.filter((v) => v !== null);
-  if (votes.some((v) => v === false)) return { verdict: 'unsure', because: 'replications disagree on stability' };
+  // Stable, but can material growth be excluded? Not while the growth interval reaches it.
+  const growth = figures.backlogGrowthPerHour;
+  const material = figures.materialGrowthPerHour;
+  if (figures.stable === true && growth && material !== null && Number.isFinite(material) && growth.high !== null && growth.high > material) {
+    return { verdict: 'unsure', because: `backlog growth interval reaches ${material.toFixed(1)} tasks/h` };
+  }
   if (throughput.mean < bar * (1 - materialShortfallShare)) return { verdict: 'unsure', because: 'throughput estimate short of the target, interval reaches it' };
   if (leadP95Limit !== null) {
     const p95 = figures.leadTimeP95Seconds;

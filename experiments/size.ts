@@ -17,7 +17,7 @@
 import type { Scenario } from '../sim/model.ts';
 import type { ReplicationRecord, SimulationSetup } from '../sim/engine.ts';
 import { InputError } from '../sim/errors.ts';
-import { summarize, type RunSummary } from '../reports/summary.ts';
+import { summarize, type ReplicationMetrics, type RunSummary } from '../reports/summary.ts';
 import type { Interval } from '../reports/stats/index.ts';
 import { safetyNote } from '../reports/safety.ts';
 import { prepareSetup } from './replications.ts';
@@ -55,7 +55,7 @@ export interface CurvePoint {
   stationIdleFraction: Interval;
   busyRobots: Interval | null;
   stable: boolean | null;
-  backlogGrowthPerHour: Interval | null;
+  backlogGrowthPerHour: Interval;
   verdict: 'meets' | 'fails' | 'undecided';
   because: string;
 }
@@ -139,7 +139,7 @@ class FleetRuns {
     return { ...this.base, fleet: { robots } };
   }
 
-  async summary(robots: number, replications: number): Promise<{ summary: RunSummary; perReplication: unknown[]; offeredPerHour: number }> {
+  async summary(robots: number, replications: number): Promise<{ summary: RunSummary; perReplication: ReplicationMetrics[]; offeredPerHour: number }> {
     const have = this.records.get(robots) ?? [];
     if (have.length < replications) {
       const scenario = this.scenarioFor(robots);
@@ -165,7 +165,7 @@ class FleetRuns {
   }
 }
 
-/** Fields other engineers add to the run summary (stability, busy robots), read when present. */
+/** Fields the run summary may not have yet (busy robots), read when present. */
 function optional<T>(value: unknown, check: (v: unknown) => boolean): T | null {
   return check(value) ? (value as T) : null;
 }
@@ -223,27 +223,25 @@ export async function sizeFleet(scenarioAtTarget: Scenario, options: SizeOptions
     const atTarget = new FleetRuns(scenario, pool, options.progress);
     const saturated = saturatedVersion(scenario);
     const capacityRuns = saturated ? new FleetRuns(saturated, pool, options.progress, 'saturated') : null;
-    const figuresOf = (summary: RunSummary, perReplication: unknown[], offeredPerHour: number): SizeFigures => {
-      const loose = summary as unknown as Record<string, unknown>;
-      return {
-        robots: summary.robots,
-        replications: summary.replications,
-        throughputPerHour: summary.throughputPerHour,
-        stable: optional<boolean>(loose.stable, (v) => typeof v === 'boolean'),
-        replicationStable: perReplication.map((w) => optional<boolean>((w as Record<string, unknown>).stable, (v) => typeof v === 'boolean')),
-        leadTimeP95Seconds: summary.leadTimeP95Seconds,
-        offeredPerHour,
-      };
-    };
+    const figuresOf = (summary: RunSummary, offeredPerHour: number): SizeFigures => ({
+      robots: summary.robots,
+      replications: summary.replications,
+      throughputPerHour: summary.throughputPerHour,
+      stable: summary.stable,
+      backlogGrowthPerHour: summary.stable === null ? null : summary.backlogGrowthPerHour,
+      materialGrowthPerHour: summary.stable === null ? null : summary.stability.materialGrowthPerHour,
+      leadTimeP95Seconds: summary.leadTimeP95Seconds,
+      offeredPerHour,
+    });
     const summaries = new Map<number, RunSummary>();
     const offered = new Map<number, number>();
     const result = await searchFleetSize({
       evaluator: {
         async evaluate(robots, replications) {
-          const { summary, perReplication, offeredPerHour } = await atTarget.summary(robots, replications);
+          const { summary, offeredPerHour } = await atTarget.summary(robots, replications);
           summaries.set(robots, summary);
           offered.set(robots, offeredPerHour);
-          return figuresOf(summary, perReplication, offeredPerHour);
+          return figuresOf(summary, offeredPerHour);
         },
       },
       target: options.target,
@@ -270,8 +268,8 @@ export async function sizeFleet(scenarioAtTarget: Scenario, options: SizeOptions
         stationStarvedFraction: s.stationStarvedFraction,
         stationIdleFraction: s.stationIdleFraction,
         busyRobots: optional<Interval>(loose.busyRobots, isInterval),
-        stable: e.figures.stable,
-        backlogGrowthPerHour: optional<Interval>(loose.backlogGrowthPerHour, isInterval),
+        stable: s.stable,
+        backlogGrowthPerHour: s.backlogGrowthPerHour,
         verdict: e.verdict,
         because: e.because,
       });

@@ -61,6 +61,9 @@ export function renderSizeTable(d: SizeView): string {
   );
   if (d.capacity) {
     out.push(`capacity of ${d.capacity.robots} robots (saturated demand): ${withHalf(d.capacity.throughputPerHour)} tasks/h, headroom ${fixed(d.capacity.headroomPercent, 0)}% over the target`);
+    if (d.capacity.headroomPercent !== null && d.capacity.headroomPercent < 0) {
+      out.push('  (saturated demand keeps one task per robot to choose from; with a queue of waiting tasks the fleet picks nearer ones and does more, as its run at the target shows: little headroom either way)');
+    }
   }
   if (d.knee) {
     out.push(

@@ -82,7 +82,8 @@ describe('the search (experiments/size-search.ts)', () => {
         replications,
         throughputPerHour: intervalOf(values, 0.95),
         stable: capacity > target,
-        replicationStable: values.map(() => capacity > target),
+        backlogGrowthPerHour: capacity > target ? { mean: 0, halfWidth: 1, low: -1, high: 1, n: replications } : { mean: target - capacity, halfWidth: 1, low: target - capacity - 1, high: target - capacity + 1, n: replications },
+        materialGrowthPerHour: 0.01 * target,
         leadTimeP95Seconds: intervalOf(values.map(() => 60), 0.95),
       };
     };
@@ -111,26 +112,30 @@ describe('the search (experiments/size-search.ts)', () => {
     expect(fleets).toEqual([1, 2, 4, 8, 16, 12, 14, 15]);
   });
 
-  it('gives more replications only where replications disagree, doubling up to the cap, and then counts the fleet as not meeting', async () => {
+  it('gives more replications only where the backlog-growth interval straddles the material growth, doubling up to the cap, and then counts the fleet as not meeting', async () => {
     const calls: [number, number][] = [];
     const evaluator = {
       async evaluate(robots: number, replications: number): Promise<SizeFigures> {
         calls.push([robots, replications]);
-        const stable = robots >= 5;
+        // Fleet 5 is on the edge: its growth interval (0.5 +- 1) reaches the material 1 task/h at any count;
+        // fleet 6 narrows below it with 6 replications.
+        const half = robots === 6 ? 4 / replications : 1;
+        const mean = robots === 5 ? 0.5 : 0;
         return {
           robots,
           replications,
           throughputPerHour: { mean: 100, halfWidth: 1, low: 99, high: 101, n: replications },
-          stable,
-          // Fleet 5 is on the edge: its replications disagree whatever their number.
-          replicationStable: Array.from({ length: replications }, (_, i) => (robots === 5 ? i % 2 === 0 : stable)),
+          stable: robots >= 5,
+          backlogGrowthPerHour: robots >= 5 ? { mean, halfWidth: half, low: mean - half, high: mean + half, n: replications } : { mean: 20, halfWidth: 1, low: 19, high: 21, n: replications },
+          materialGrowthPerHour: 1,
           leadTimeP95Seconds: { mean: 10, halfWidth: 1, low: 9, high: 11, n: replications },
         };
       },
     };
     const result = await searchFleetSize({ evaluator, target: 100, min: 1, max: 10, start: 5, replications: 3, maxReplications: 12, leadP95Limit: null });
     expect(calls.filter(([n]) => n === 5).map(([, r]) => r)).toEqual([3, 6, 12]);
-    expect(calls.filter(([n]) => n !== 5).every(([, r]) => r === 3)).toBe(true);
+    expect(calls.filter(([n]) => n === 6).map(([, r]) => r)).toEqual([3, 6]);
+    expect(calls.filter(([n]) => n !== 5 && n !== 6).every(([, r]) => r === 3)).toBe(true);
     expect(result.evaluated.get(5)?.verdict).toBe('undecided');
     expect(result.recommended).toBe(6);
   });
@@ -144,7 +149,8 @@ describe('the search (experiments/size-search.ts)', () => {
           replications,
           throughputPerHour: { mean: 100, halfWidth: 1, low: 99, high: 101, n: replications },
           stable: robots >= 2,
-          replicationStable: Array.from({ length: replications }, () => robots >= 2),
+          backlogGrowthPerHour: { mean: 0, halfWidth: 0.1, low: -0.1, high: 0.1, n: replications },
+          materialGrowthPerHour: 1,
           leadTimeP95Seconds: { mean: p95, halfWidth: 2, low: p95 - 2, high: p95 + 2, n: replications },
         };
       },
