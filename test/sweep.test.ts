@@ -295,3 +295,14 @@ describe('the run journal', () => {
     expect(() => new RunJournal(file, (id) => id !== 'b')).toThrow(/runs\.jsonl: line 2 holds run "b", which is not a run of this sweep plan/);
   });
 });
+
+describe('sweep CSV cells stay text in a spreadsheet', () => {
+  it('writes a cell x:y as xX:yY, also as a key of weights written as JSON', async () => {
+    const { spreadsheetValue } = await import('../reports/sweep-tables.ts');
+    // Spreadsheet programs read "17:10" as a clock time (common practice).
+    expect(spreadsheetValue('17:10')).toBe('x17:y10');
+    expect(spreadsheetValue({ weights: { '7:1': 3, '7:2': 1 } })).toBe('{"weights":{"x7:y1":3,"x7:y2":1}}');
+    expect(spreadsheetValue('token-passing')).toBe('token-passing');
+    expect(spreadsheetValue(12)).toBe(12);
+  });
+});
