@@ -240,3 +240,19 @@ describe('size with no answer in range: null with the reason (exit 0)', () => {
     expect(document.curve).toEqual([]);
   });
 });
+
+describe('size: bad options exit 2 with one line', () => {
+  it.each([
+    [['--target', 'abc'], /--target: got "abc", expected tasks per hour > 0/],
+    [['--target', '900', '--min', '30', '--max', '20'], /--min: got 30, expected at most --max \(20\)/],
+    [['--target', '900', '--confidence', '2'], /--confidence: got 2, expected a number between 0 and 1/],
+    [['--target', '900', '--lead-p95', '-1'], /--lead-p95: got "-1", expected a number of seconds > 0/],
+    [['--target', '1e9'], /--target: got 1000000000, expected a rate that releases at most 10,000,000 tasks/],
+  ])('%j', (args, message) => {
+    const result = fleetwright('size', 'scenarios/demo-sortation.yaml', ...(args as string[]));
+    expect(result.stdout).toBe('');
+    expect(result.stderr).toMatch(/^fleetwright: error: [^\n]+\n$/);
+    expect(result.stderr).toMatch(message as RegExp);
+    expect(result.status).toBe(2);
+  });
+});
