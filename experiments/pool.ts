@@ -13,6 +13,7 @@ import { InputError, RunError } from '../sim/errors.ts';
 import type { ReplicationReply, ReplicationTask } from './replication-worker.ts';
 import type { SimulationSetup } from '../sim/engine.ts';
 import { checkedReplication, prepareSetup } from './replications.ts';
+import { runLine, type RunLineHeader } from './run-line.ts';
 
 /** Worker threads to use when the user does not say: one per core. */
 export function defaultWorkers(): number {
@@ -30,6 +31,8 @@ export function parseWorkers(text: string | undefined, option = '--workers'): nu
 export interface ReplicationPool {
   readonly workers: number;
   run(scenarioKey: string, scenario: Scenario, replication: number): Promise<ReplicationRecord>;
+  /** One sweep run, summarized where it ran: its runs.jsonl line. */
+  runLine(scenarioKey: string, scenario: Scenario, header: RunLineHeader): Promise<string>;
   close(): Promise<void>;
 }
 
@@ -37,17 +40,24 @@ const workerFile = fileURLToPath(new URL('./replication-worker.js', import.meta.
 
 export function createPool(workers: number): ReplicationPool {
   const pool = new Tinypool({ filename: workerFile, minThreads: workers, maxThreads: workers, idleTimeout: 60_000 });
+  const send = async (task: ReplicationTask) => {
+    const reply = (await pool.run(task)) as ReplicationReply;
+    if (reply.ok) return reply;
+    if (reply.kind === 'input') throw new InputError(reply.message);
+    if (reply.kind === 'run') throw new RunError(reply.message);
+    const error = new Error(reply.message);
+    if (reply.stack) error.stack = reply.stack;
+    throw error;
+  };
   return {
     workers,
     async run(scenarioKey, scenario, replication) {
-      const task: ReplicationTask = { scenarioKey, scenario, replication };
-      const reply = (await pool.run(task)) as ReplicationReply;
-      if (reply.ok) return reply.record;
-      if (reply.kind === 'input') throw new InputError(reply.message);
-      if (reply.kind === 'run') throw new RunError(reply.message);
-      const error = new Error(reply.message);
-      if (reply.stack) error.stack = reply.stack;
-      throw error;
+      const reply = await send({ scenarioKey, scenario, replication });
+      return (reply as { record: ReplicationRecord }).record;
+    },
+    async runLine(scenarioKey, scenario, header) {
+      const reply = await send({ scenarioKey, scenario, replication: header.replication, line: header });
+      return (reply as { line: string }).line;
     },
     async close() {
       await pool.destroy();
@@ -69,6 +79,9 @@ export function createInlinePool(prepare: (scenario: Scenario) => SimulationSetu
       // Yield first, so that callers awaiting several runs see them one after another.
       await Promise.resolve();
       return checkedReplication(setup, replication);
+    },
+    async runLine(scenarioKey, scenario, header) {
+      return runLine(header, scenario, await this.run(scenarioKey, scenario, header.replication));
     },
     async close() {
       setups.clear();

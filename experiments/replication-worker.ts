@@ -9,16 +9,20 @@ import type { Scenario } from '../sim/model.ts';
 import type { ReplicationRecord, SimulationSetup } from '../sim/engine.ts';
 import { InputError, RunError } from '../sim/errors.ts';
 import { checkedReplication, prepareSetup } from './replications.ts';
+import { runLine, type RunLineHeader } from './run-line.ts';
 
 export interface ReplicationTask {
   /** Identifies the scenario's content (its run-id hash); equal keys share a setup. */
   scenarioKey: string;
   scenario: Scenario;
   replication: number;
+  /** When set, reply with the sweep's run line instead of the record (less to copy back). */
+  line?: RunLineHeader;
 }
 
 export type ReplicationReply =
   | { ok: true; record: ReplicationRecord }
+  | { ok: true; line: string }
   | { ok: false; kind: 'input' | 'run' | 'internal'; message: string; stack?: string };
 
 const setups = new Map<string, SimulationSetup>();
@@ -33,7 +37,8 @@ export function runReplicationTask(task: ReplicationTask): ReplicationReply {
       if (setups.size >= maxSetups) setups.delete(setups.keys().next().value as string);
       setups.set(task.scenarioKey, setup);
     }
-    return { ok: true, record: checkedReplication(setup, task.replication) };
+    const record = checkedReplication(setup, task.replication);
+    return task.line ? { ok: true, line: runLine(task.line, task.scenario, record) } : { ok: true, record };
   } catch (error) {
     const kind = error instanceof InputError ? 'input' : error instanceof RunError ? 'run' : 'internal';
     return { ok: false, kind, message: error instanceof Error ? error.message : String(error), stack: error instanceof Error ? error.stack : undefined };

@@ -9,7 +9,7 @@
  *               together (experiments/output-folder.ts).
  *
  * Runs go to a worker-thread pool, at most two per worker in flight, so memory does not
- * grow with the plan; each finished record is reduced to its run line at once. A run line
+ * grow with the plan; each run is summarized to its line in the worker that ran it. A run line
  * holds the run's id, plan position, parameters and its run summary (one replication, its
  * own warm-up cut); wall-clock figures only under `timing`. Lines are byte-identical
  * outside `timing` whatever the worker count or sharding.
@@ -18,8 +18,6 @@ import { closeSync, existsSync, openSync, readFileSync, renameSync, rmSync, writ
 import os from 'node:os';
 import path from 'node:path';
 import { InputError } from '../sim/errors.ts';
-import type { ReplicationRecord } from '../sim/engine.ts';
-import { summarize } from '../reports/summary.ts';
 import { PointAccumulator, runsCsvHeader, runsCsvRow, summaryCsvHeader, summaryCsvRow, type RunLine } from '../reports/sweep-tables.ts';
 import { ensureOutputFolder, writeDurable, writeOutputFolder, type OutputFile } from './output-folder.ts';
 import { createPool } from './pool.ts';
@@ -87,19 +85,6 @@ export function readPlanDocument(directory: string, option: string): PlanDocumen
   } catch (error) {
     throw new InputError(`${option}: ${JSON.stringify(file)} is not a fleetwright sweep plan (${error instanceof Error ? error.message : error}), expected a folder written by fleetwright sweep`);
   }
-}
-
-/** JSON on one line with NaN and infinities as null. */
-export function jsonLine(value: unknown): string {
-  return JSON.stringify(value, (_key, v) => (typeof v === 'number' && !Number.isFinite(v) ? null : v));
-}
-
-/** A finished run as its line of runs.jsonl. */
-export function runLineOf(plan: SweepPlan, run: PlannedRun, record: ReplicationRecord): string {
-  const point = plan.points[run.point];
-  const { summary } = summarize(point.scenario, [record], record.timing.wallSeconds);
-  const { timing, ...content } = summary;
-  return jsonLine({ id: run.id, run: run.index, point: run.point, replication: run.replication, parameters: point.parameters, summary: content, timing });
 }
 
 /** Takes the folder for this process, or says who holds it. A lock left by a killed process is taken over. */
@@ -173,8 +158,8 @@ export async function runSweep(plan: SweepPlan, options: SweepOptions): Promise<
         try {
           await runAll(todo, pool.workers * 2, async (run) => {
             const point = plan.points[run.point];
-            const record = await pool.run(point.key, point.scenario, run.replication);
-            journal.append(run.id, runLineOf(plan, run, record));
+            const line = await pool.runLine(point.key, point.scenario, { id: run.id, run: run.index, point: run.point, replication: run.replication, parameters: point.parameters });
+            journal.append(run.id, line);
             options.progress?.(++done, selected.length, resumed);
           });
         } finally {
