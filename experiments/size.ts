@@ -290,8 +290,11 @@ export async function sizeFleet(scenarioAtTarget: Scenario, options: SizeOptions
     const capacityReplications = Math.max(2, Math.min(options.replications, 5));
     let previous: CapacityPoint | null = null;
     let previousInterval: Interval | null = null;
-    for (const robots of capacityRuns ? sizes : []) {
-      const { summary } = await capacityRuns!.summary(robots, capacityReplications);
+    // All capacity runs at once, so every worker stays busy; read in fleet order after.
+    const capacitySummaries = capacityRuns ? await Promise.all(sizes.map((robots) => capacityRuns.summary(robots, capacityReplications))) : [];
+    for (let k = 0; k < capacitySummaries.length; k++) {
+      const robots = sizes[k];
+      const { summary } = capacitySummaries[k];
       const point: CapacityPoint = {
         robots,
         replications: summary.replications,
