@@ -128,6 +128,7 @@ program
   .addOption(new Option('--warmup <hours|auto>', "warm-up to cut (overrides run.warmup)"))
   .addOption(new Option('--workers <k>', 'worker threads (default: one per core)'))
   .addOption(new Option('--json', 'print one JSON document on stdout instead of the table'))
+  .addOption(new Option('--out <dir>', 'also write size.json (the --json document) and context.json into this folder, for `fleetwright report`'))
   .action(async (scenarioPath: string, options: RunOptionValues & { target: string; min?: string; max?: string; leadP95?: string; confidence?: string; workers?: string }) => {
     const { sizeCommand } = await import('./commands/size.ts');
     await sizeCommand(scenarioPath, options, overridesFrom({ hours: options.hours, reps: options.reps, seed: options.seed, warmup: options.warmup, policy: options.policy }));

@@ -3,8 +3,10 @@ import { loadScenarioFile, type ScenarioOverrides } from '../../scenarios/load.t
 import { sizeFleet } from '../../experiments/size.ts';
 import { parseWorkers } from '../../experiments/pool.ts';
 import { prepareSetup } from '../../experiments/replications.ts';
+import { checkOutputFolder, writeOutputFolder } from '../../experiments/output-folder.ts';
 import { renderSizeTable } from '../../reports/size-table.ts';
 import { toJson } from '../../reports/summary.ts';
+import { runContext } from '../../reports/run-context.ts';
 import { InputError } from '../../sim/errors.ts';
 
 export interface SizeOptionValues {
@@ -15,6 +17,7 @@ export interface SizeOptionValues {
   confidence?: string;
   workers?: string;
   json?: boolean;
+  out?: string;
 }
 
 function positive(text: string | undefined, option: string, what: string, integer: boolean): number | undefined {
@@ -42,6 +45,7 @@ export async function sizeCommand(scenarioPath: string, options: SizeOptionValue
     }
   }
   prepareSetup(scenario, overrides.policy !== undefined ? '--policy' : undefined);
+  if (options.out !== undefined) checkOutputFolder(options.out, ['size.json', 'context.json']);
   const document = await sizeFleet(scenario, {
     target,
     min,
@@ -52,6 +56,13 @@ export async function sizeCommand(scenarioPath: string, options: SizeOptionValue
     progress: process.stderr.isTTY && !options.json ? (text) => process.stderr.write(`\r\x1b[Ksize: ${text}`) : undefined,
   });
   if (process.stderr.isTTY && !options.json) process.stderr.write('\r\x1b[K');
+  if (options.out !== undefined) {
+    writeOutputFolder(options.out, [
+      { name: 'size.json', content: `${toJson(document)}\n` },
+      { name: 'context.json', content: `${toJson(runContext(scenario, process.argv.slice(2)))}\n` },
+    ]);
+  }
   if (options.json) process.stdout.write(`${toJson(document)}\n`);
   else process.stdout.write(`${renderSizeTable(document)}\n`);
+  if (options.out !== undefined && !options.json) process.stderr.write(`results written to ${options.out}/ (size.json, context.json; fleetwright report ${options.out} draws them)\n`);
 }

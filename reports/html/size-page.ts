@@ -24,7 +24,8 @@ export function sizePage(results: ResultsFolder): { title: string; body: string 
   );
   if (doc.reason) parts.push(facts([['reason', String(doc.reason)]]));
   parts.push('<h2 id="curve">Throughput against fleet size</h2>');
-  const points: CurvePoint[] = curve.map((c) => ({ robots: c.robots, throughputPerHour: c.throughputPerHour, leadTimeSeconds: c.leadTimeSeconds, stable: c.stable }));
+  // The search's verdict (stable, interval not below the target, service level) decides "meets target".
+  const points: CurvePoint[] = curve.map((c) => ({ robots: c.robots, throughputPerHour: c.throughputPerHour, leadTimeSeconds: c.leadTimeSeconds, stable: c.stable, verdict: typeof c.verdict === 'string' ? c.verdict : undefined }));
   parts.push(fleetSizeCurve('fleet-size', points, { target: doc.target, recommended: doc.recommendedRobots }).html);
   parts.push(provenance(results.context, results.folder));
   return { title, body: parts.join('\n') };

@@ -16,6 +16,8 @@ export interface CurvePoint {
   stable?: boolean | null;
   /** Several lines (sweep): the series this point belongs to. */
   series?: string;
+  /** The size search's own verdict (size --json curve: meets, fails or undecided), shown as it is when given. */
+  verdict?: string;
 }
 
 export function fleetSizeCurve(id: string, points: CurvePoint[], options: { target?: number | null; recommended?: number | null; title?: string; xLabel?: string } = {}): { html: string; dots: number; intervals: number } {
@@ -56,7 +58,15 @@ export function fleetSizeCurve(id: string, points: CurvePoint[], options: { targ
       { label: 'throughput (tasks/h)', value: (d) => intervalText(d.point.throughputPerHour, 1), numeric: true },
       { label: 'lead time (s)', value: (d) => intervalText(d.point.leadTimeSeconds, 1), numeric: true },
       { label: 'stable', value: (d) => (d.point.stable === null || d.point.stable === undefined ? '–' : d.point.stable ? 'yes' : 'no') },
-      ...(target !== null ? [{ label: 'meets target', value: (d: (typeof data)[number]) => (d.low !== null ? (d.low >= target ? 'yes' : 'no') : fixed(d.mean, 1)) }] : []),
+      ...(target !== null
+        ? [
+            {
+              label: 'meets target',
+              value: (d: (typeof data)[number]) =>
+                d.point.verdict !== undefined ? (d.point.verdict === 'meets' ? 'yes' : d.point.verdict === 'fails' ? 'no' : d.point.verdict) : d.low !== null ? (d.low >= target ? 'yes' : 'no') : fixed(d.mean, 1),
+            },
+          ]
+        : []),
     ],
     data,
   );
