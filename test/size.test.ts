@@ -4,7 +4,7 @@
  * (where the hand formula is exact), and the null answers with their reasons.
  */
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import seedrandom from 'seedrandom';
@@ -231,7 +231,11 @@ describe('size with no answer in range: null with the reason (exit 0)', () => {
   });
 
   it('a target beyond what the busiest station can handle is refused without running a fleet', () => {
-    const result = fleetwright('size', 'test/fixtures/cli-small-hall.yaml', '--target', '1000', '--json');
+    const out = path.join(temporary, 'station-limit');
+    const result = fleetwright('size', 'test/fixtures/cli-small-hall.yaml', '--target', '1000', '--json', '--out', out);
+    // --out holds the same document, and the context the HTML report reads.
+    expect(readFileSync(path.join(out, 'size.json'), 'utf8')).toBe(result.stdout);
+    expect(JSON.parse(readFileSync(path.join(out, 'context.json'), 'utf8')).command).toMatch(/^fleetwright size /);
     expect(result.status).toBe(0);
     const document = JSON.parse(result.stdout);
     expect(document.recommendedRobots).toBeNull();
