@@ -254,7 +254,9 @@ describe('result folders are all-or-nothing (run --out)', () => {
     const out = path.join(fresh('run-out'), 'results');
     const first = fleetwright(['run', smallHall, '--out', out, '--json']);
     expect(first.status, first.stderr).toBe(0);
-    const before = Object.fromEntries(['summary.json', 'replications.csv', 'throughput.csv'].map((n) => [n, readFileSync(path.join(out, n), 'utf8')]));
+    const written = readdirSync(out).sort();
+    expect(written).toEqual(['cells.csv', 'context.json', 'lead-times.csv', 'replications.csv', 'stations.csv', 'summary.json', 'throughput.csv']);
+    const before = Object.fromEntries(written.filter((n) => n !== 'stations.csv').map((n) => [n, readFileSync(path.join(out, n), 'utf8')]));
     rmSync(path.join(out, 'stations.csv'));
     mkdirSync(path.join(out, 'stations.csv'));
     const result = fleetwright(['run', smallHall, '--out', out, '--json', '--seed', '9']);
@@ -262,7 +264,7 @@ describe('result folders are all-or-nothing (run --out)', () => {
     expect(result.stdout).toBe('');
     expect(result.stderr).toMatch(/^fleetwright: error: --out: ".*results\/stations\.csv" is a folder, expected a file path fleetwright may replace \(nothing was written\)\n$/);
     for (const [name, text] of Object.entries(before)) expect(readFileSync(path.join(out, name), 'utf8'), name).toBe(text);
-    expect(readdirSync(out).sort()).toEqual(['replications.csv', 'stations.csv', 'summary.json', 'throughput.csv']);
+    expect(readdirSync(out).sort()).toEqual(written);
   });
 });
 
