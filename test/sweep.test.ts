@@ -212,8 +212,8 @@ describe('one worker, two workers and merged shards give the same results', () =
 
 describe('kill -9 at random moments, then resume', () => {
   it('the final runs.jsonl holds exactly the runs of an uninterrupted sweep, none lost, none doubled', async () => {
-    // 2 points x 8 replications of a two-hour run: long enough to be killed mid-sweep.
-    const plan = writePlan(planText.replace('demand.tasksPerHour: [120, 240]', 'run.hours: [2]').replace('replications: 3', 'replications: 8'));
+    // 2 points x 8 replications of a 12-hour run: long enough to be killed mid-sweep.
+    const plan = writePlan(planText.replace('demand.tasksPerHour: [120, 240]', 'run.hours: [12]').replace('replications: 3', 'replications: 8'));
     const root = path.dirname(plan);
     const reference = path.join(root, 'reference');
     expect(fleetwright(['sweep', plan, '--out', reference, '--workers', '2']).status).toBe(0);
