@@ -308,3 +308,19 @@ describe('sweep CSV cells stay text in a spreadsheet', () => {
     expect(spreadsheetValue(12)).toBe(12);
   });
 });
+
+describe('replication records are plain data', () => {
+  it('a record survives structured cloning (worker threads) and JSON with every metric', async () => {
+    const { runReplications } = await import('../experiments/replications.ts');
+    const { loadScenarioFile } = await import('../scenarios/load.ts');
+    const [record] = runReplications(loadScenarioFile(smallHall, { replications: 1 }));
+    expect(Object.getPrototypeOf(record.metrics)).toBe(Object.prototype);
+    const cloned = structuredClone(record);
+    expect(cloned.metrics.leadTicks.length).toBe(record.metrics.leadTicks.length);
+    expect(cloned.metrics.leadTicks.length).toBeGreaterThan(0);
+    expect(Array.from(cloned.metrics.deliveries)).toEqual(Array.from(record.metrics.deliveries));
+    expect(record.recordVersion).toBe(1);
+    expect(Object.keys(record.timing).sort()).toEqual(['planningSeconds', 'wallSeconds']);
+    expect(record).not.toHaveProperty('wallSeconds');
+  });
+});
