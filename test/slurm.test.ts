@@ -69,3 +69,22 @@ describe.skipIf(!available && !required)('Slurm array job', () => {
     expect(readFileSync(path.join(results, 'all', 'summary.csv'), 'utf8')).toBe(readFileSync(path.join(temporary, 'local', 'summary.csv'), 'utf8'));
   });
 });
+
+describe('the cluster examples in the repository', () => {
+  it('the Kubernetes Indexed Job sets JOB_COMPLETIONS to its completions, and each pod runs its shard into its own folder', async () => {
+    const { parse } = await import('yaml');
+    const job = parse(readFileSync(path.join(repositoryRoot, 'examples/kubernetes/sweep-indexed-job.yaml'), 'utf8'));
+    expect(job.kind).toBe('Job');
+    expect(job.spec.completionMode).toBe('Indexed');
+    const container = job.spec.template.spec.containers[0];
+    const completions = container.env.find((e: { name: string }) => e.name === 'JOB_COMPLETIONS');
+    expect(Number(completions.value)).toBe(job.spec.completions);
+    expect(container.args.join(' ')).toMatch(/fleetwright sweep plan\.yaml --out "shard-\$JOB_COMPLETION_INDEX"/);
+  });
+
+  it('the sbatch script is a 16-task array whose tasks write shard-$SLURM_ARRAY_TASK_ID', () => {
+    const script = readFileSync(path.join(repositoryRoot, 'examples/slurm/sweep-array.sbatch'), 'utf8');
+    expect(script).toMatch(/^#SBATCH --array=0-15$/m);
+    expect(script).toMatch(/sweep "\$PLAN" --out "\$RESULTS\/shard-\$SLURM_ARRAY_TASK_ID"/);
+  });
+});
