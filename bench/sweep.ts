@@ -3,7 +3,7 @@
  * minute; the ratio shows how well the pool uses the cores), and the wall time of the
  * demo's sizing question. Each sweep starts in a fresh folder, so nothing is resumed.
  */
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { loadSweepPlan } from '../experiments/sweep-plan.ts';
@@ -19,15 +19,32 @@ export async function benchSweep(workerCounts: number[]): Promise<Record<string,
   const folder = mkdtempSync(path.join(os.tmpdir(), 'fleetwright-bench-sweep-'));
   try {
     const planFile = path.join(folder, 'plan.yaml');
-    // 2 fleets x 2 rates x 6 replications of 2 simulated hours: 24 runs of similar length.
-    writeFileSync(planFile, `scenario: ${JSON.stringify(demo)}\nvary:\n  fleet.robots: [12, 24]\n  demand.tasksPerHour: [600, 900]\n  run.hours: [2]\nreplications: 6\n`);
+    // 2 fleets x 2 rates x 12 replications of 4 simulated hours: 48 runs of similar length,
+    // enough that starting the worker threads (about half a second) is a small part.
+    writeFileSync(planFile, `scenario: ${JSON.stringify(demo)}\nvary:\n  fleet.robots: [12, 24]\n  demand.tasksPerHour: [600, 900]\nreplications: 12\n`);
     const plan = loadSweepPlan(planFile);
     const rows: Record<string, number | string>[] = [];
     for (const workers of workerCounts) {
       const started = performance.now();
-      await runSweep(plan, { outDirectory: path.join(folder, `out-${workers}`), workers, shard: wholePlan });
+      const out = path.join(folder, `out-${workers}`);
+      await runSweep(plan, { outDirectory: out, workers, shard: wholePlan });
       const minutes = (performance.now() - started) / 60_000;
-      rows.push({ name: 'sweep', workers, runs: plan.runs.length, wallSeconds: Number((minutes * 60).toFixed(2)), runsPerMinute: Number((plan.runs.length / minutes).toFixed(1)) });
+      // Share of the workers' time spent simulating (engine wall time of every run over
+      // workers x sweep wall time): near 1 when the pool keeps every thread busy, whatever
+      // else slows the machine down.
+      const engineSeconds = readFileSync(path.join(out, 'runs.jsonl'), 'utf8')
+        .trimEnd()
+        .split('\n')
+        .reduce((sum, line) => sum + (JSON.parse(line).timing.wallSeconds as number), 0);
+      rows.push({
+        name: 'sweep',
+        workers,
+        runs: plan.runs.length,
+        wallSeconds: Number((minutes * 60).toFixed(2)),
+        runsPerMinute: Number((plan.runs.length / minutes).toFixed(1)),
+        workerBusyShare: Number((engineSeconds / (workers * minutes * 60)).toFixed(3)),
+        loadAverage: Number(os.loadavg()[0].toFixed(2)),
+      });
     }
     const one = rows.find((r) => r.workers === 1);
     for (const row of rows) if (one) row.speedupOverOneWorker = Number(((row.runsPerMinute as number) / (one.runsPerMinute as number)).toFixed(2));
