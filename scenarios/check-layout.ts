@@ -1,6 +1,7 @@
 /** The facts `fleetwright check` reports about a scenario's layout (DESIGN §7 `check --json`). */
 import type { Scenario } from '../sim/model.ts';
 import { checkWellFormed, componentLabels, parseLayout } from '../sim/layout.ts';
+import { restCellsForFleet, restCellsOf, withRestCells } from '../sim/rest-cells.ts';
 
 export interface LayoutReport {
   width: number;
@@ -13,12 +14,26 @@ export interface LayoutReport {
   connected: boolean;
   wellFormed: boolean;
   wellFormedViolation: string | null;
+  /** Plain floor cells the planned policies may add as non-task endpoints (sim/rest-cells.ts) while the floor stays well-formed. */
+  restCells: number;
+  /** Why no rest cell can be added, or null. */
+  restCellsNote: string | null;
+  /** Parking spots plus rest cells: the largest fleet the planned policies can rest (token passing, flow-batch). */
+  robotsHeld: number;
+  /** Rest cells this fleet uses: one per robot beyond the parking spots, as far as the floor has them. */
+  restCellsUsed: number;
+  /** Well-formed for this fleet once its rest cells count as non-task endpoints. */
+  wellFormedWithRestCells: boolean;
 }
 
 export function checkLayout(scenario: Scenario): LayoutReport {
   const layout = parseLayout(scenario.layoutText);
   const { count } = componentLabels(layout);
-  const wellFormed = checkWellFormed(layout, scenario.fleet.robots);
+  const robots = scenario.fleet.robots;
+  const wellFormed = checkWellFormed(layout, robots);
+  const rest = restCellsOf(layout);
+  const used = restCellsForFleet(layout, robots);
+  const withRest = wellFormed.wellFormed ? wellFormed : checkWellFormed(withRestCells(layout, used), robots);
   return {
     width: layout.width,
     height: layout.height,
@@ -30,5 +45,10 @@ export function checkLayout(scenario: Scenario): LayoutReport {
     connected: count === 1,
     wellFormed: wellFormed.wellFormed,
     wellFormedViolation: wellFormed.violation,
+    restCells: rest.cells.length,
+    restCellsNote: rest.reason,
+    robotsHeld: layout.parking.length + rest.cells.length,
+    restCellsUsed: used.length,
+    wellFormedWithRestCells: withRest.wellFormed,
   };
 }

@@ -26,6 +26,7 @@ import { MetricsRecorder, type RecordedMetrics } from './metrics.ts';
 import { DeadlockDetector } from './deadlock-detector.ts';
 import { ArrivalProcess, makeHandlingSampler, makePointChooser } from './demand.ts';
 import { RunError } from './errors.ts';
+import { restSpotsForFleet } from './rest-cells.ts';
 
 const EventKind = { Motion: 0, HandlingDone: 1, Release: 2, Recover: 3, Wake: 4, Check: 5, End: 6 } as const;
 
@@ -667,10 +668,15 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
   };
 }
 
-/** Robots start on parking spots in reading order, then on floor cells in reading order. */
+/**
+ * Robots start on parking spots in reading order, then on the fleet's rest cells
+ * (sim/rest-cells.ts, when there are more robots than spots), then on floor cells in
+ * reading order. Starting on rest cells keeps a floor that is well-formed with its rest
+ * cells well-formed from the first tick, instead of packing the extra robots into the aisles.
+ */
 export function placeRobots(world: World, layout: Layout): void {
   let r = 0;
-  for (const c of layout.parking) {
+  for (const c of restSpotsForFleet(layout, world.robotCount)) {
     if (r >= world.robotCount) break;
     world.robotCell[r] = c;
     world.occupant[c] = r++;

@@ -18,10 +18,11 @@
  *  - A candidate c in K is accepted when removing it from F keeps (I) with c as a new
  *    endpoint: (a) the F-neighbours of c are 4-connected to one another through the F cells
  *    of the 8 cells around c, so any path through c can go round it and K minus c stays
- *    connected (a local form of the "simple point" test of digital topology for 4-connected
- *    foreground; Rosenfeld, "Connectivity in Digital Pictures", JACM 17(1), 1970, (memory)); (b) c touches K (has an F-neighbour), so the new endpoint reaches K; (c)
- *    every endpoint next to c keeps another F-neighbour in K, so c is never a station's or a
- *    parking spot's only access.
+ *    connected (a local form of the "simple point" test of digital topology for a
+ *    4-connected foreground; Rosenfeld, "Connectivity in Digital Pictures", JACM 17(1),
+ *    1970, (memory)); (b) c touches K (has an F-neighbour), so the new endpoint reaches K;
+ *    (c) every endpoint next to c keeps another F-neighbour in K, so c is never a
+ *    station's or a parking spot's only access.
  *  - Candidates are tried in order of preference, so that a fleet that needs k rest cells
  *    gets the k best: first cells next to no task endpoint (P, D, S), so a resting robot
  *    never stands beside a station; then fewer F-neighbours first (cells along walls and in

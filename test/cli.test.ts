@@ -282,13 +282,28 @@ describe('check', () => {
   it('check --json on the demo hall: 40 x 20, 8 pickups, 40 drops, connected and well-formed', () => {
     const report = jsonOf(fleetwright('check', demo, '--json'));
     expect(Object.keys(report).sort()).toEqual(
-      ['connected', 'drops', 'floorCells', 'height', 'parking', 'pickups', 'storage', 'wellFormed', 'wellFormedViolation', 'width'].sort(),
+      ['connected', 'drops', 'floorCells', 'height', 'parking', 'pickups', 'storage', 'wellFormed', 'wellFormedViolation', 'width', 'restCells', 'restCellsNote', 'robotsHeld', 'restCellsUsed', 'wellFormedWithRestCells'].sort(),
     );
     expect(report).toMatchObject({ width: 40, height: 20, pickups: 8, drops: 40, storage: 0, connected: true, wellFormed: true, wellFormedViolation: null });
     // Counted by hand from the layout: 38 travelable columns x 18 rows, less 20 islands of 2 walls.
     expect(report.floorCells).toBe(38 * 18 - 40);
     // 10 + 10 spots along the north and south aisles, 18 along the east wall.
     expect(report.parking).toBe(38);
+    // 24 robots fit on the marked spots: no rest cell needed.
+    expect(report.restCellsUsed).toBe(0);
+  });
+
+  it('check --robots N: past the parking count the floor holds robotsHeld robots with rest cells, and one more breaks it', () => {
+    const at100 = jsonOf(fleetwright('check', demo, '--json', '--robots', '100'));
+    expect(at100).toMatchObject({ wellFormed: false, wellFormedWithRestCells: true, restCellsUsed: 62, restCellsNote: null });
+    expect(at100.robotsHeld).toBeGreaterThanOrEqual(200);
+    const held = jsonOf(fleetwright('check', demo, '--json', '--robots', String(at100.robotsHeld)));
+    expect(held).toMatchObject({ wellFormed: false, wellFormedWithRestCells: true, restCellsUsed: at100.robotsHeld - 38 });
+    const over = jsonOf(fleetwright('check', demo, '--json', '--robots', String(at100.robotsHeld + 1)));
+    expect(over.wellFormedWithRestCells).toBe(false);
+    const human = fleetwright('check', demo, '--robots', '100');
+    expect(human.stdout).toMatch(/this fleet uses 62/);
+    expect(human.stdout).toMatch(/well-formed with rest cells for 100 robots: yes/);
   });
 
   it('a parking spot reachable only through a pickup breaks well-formedness, and both endpoints are named', () => {
@@ -300,6 +315,9 @@ describe('check', () => {
     expect(human.status, human.stderr).toBe(0);
     expect(human.stdout).toMatch(/well-formed.*: no: .*1:1\b.*\b5:2\b/);
     expect(human.stdout).toMatch(/connected: yes/);
+    // Rest cells cannot repair it.
+    expect(report).toMatchObject({ restCells: 0, wellFormedWithRestCells: false });
+    expect(human.stdout).toMatch(/only guaranteed to finish every task on well-formed layouts/);
   });
 });
 

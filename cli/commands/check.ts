@@ -16,7 +16,15 @@ export function checkCommand(scenarioPath: string, json: boolean, overrides: Sce
     `connected: ${report.connected ? 'yes' : 'no'}`,
     `well-formed (Ma et al. 2017): ${report.wellFormed ? 'yes' : `no: ${report.wellFormedViolation}`}`,
   ];
+  lines.push(
+    report.restCellsNote === null
+      ? `rest cells: ${report.restCells} floor cells can be extra rest spots with the floor still well-formed, so token passing and flow-batch hold ${report.robotsHeld} robots (${report.parking} on parking); this fleet uses ${report.restCellsUsed}`
+      : `rest cells: none (${report.restCellsNote}); token passing and flow-batch hold ${report.robotsHeld} robots`,
+  );
   if (!report.wellFormed) {
+    lines.push(`well-formed with rest cells for ${scenario.fleet.robots} robots: ${report.wellFormedWithRestCells ? 'yes' : 'no'}`);
+  }
+  if (!report.wellFormedWithRestCells) {
     lines.push('planned policies (token passing, flow-batch) are only guaranteed to finish every task on well-formed layouts; expect waits or stalls');
   }
   process.stdout.write(`${lines.join('\n')}\n`);

@@ -60,12 +60,12 @@
  * the policy; Infinity when there is nothing to do.
  */
 import { z } from 'zod';
-import { CellKind } from '../../sim/layout.ts';
 import type { Policy, PolicyContext, PolicyOptionDoc } from '../../sim/policy.ts';
 import { ReservationTable } from '../../sim/reservation-table.ts';
+import { restSpotsForFleet } from '../../sim/rest-cells.ts';
 import { SpaceTimeAStar } from '../../sim/space-time-astar.ts';
 import { Phase } from '../../sim/world.ts';
-import { freeParkingSpots, planRest, planTask, type Planner } from '../shared/task-path.ts';
+import { freeParkingSpots, planRest, planTask, type ParkingAfter, type Planner } from '../shared/task-path.ts';
 import { EpochAssigner, taskEndpoints } from './epoch-assignment.ts';
 
 export const flowBatchOptions = z
@@ -114,6 +114,10 @@ export class FlowBatch implements Policy {
   /** Consecutive failed plans per robot, and the tick before which it sits out dispatches. */
   private readonly failures: Int32Array;
   private readonly retryAt: Float64Array;
+  /** Where robots may rest: marked parking, then the fleet's rest cells (sim/rest-cells.ts). */
+  private readonly restSpots: Int32Array;
+  private readonly isRestSpot: Uint8Array;
+  private readonly spotBuffer = new Int32Array(3);
 
   constructor(
     private readonly context: PolicyContext,
@@ -131,17 +135,20 @@ export class FlowBatch implements Policy {
     this.parkRetryTick = new Int32Array(world.robotCount);
     this.failures = new Int32Array(world.robotCount);
     this.retryAt = new Float64Array(world.robotCount);
+    this.restSpots = restSpotsForFleet(layout, world.robotCount);
+    this.isRestSpot = new Uint8Array(layout.cellCount);
+    for (const c of this.restSpots) this.isRestSpot[c] = 1;
     for (let r = 0; r < world.robotCount; r++) this.table.rest(r, world.robotCell[r], 0);
   }
 
-  /** Free parking spots (no other robot's rest) nearest to `cell` first. */
-  private readonly parkingNear = (cell: number): number[] => {
-    const { layout, distances } = this.context;
-    return freeParkingSpots(layout, distances, this.table, cell);
+  /** Free rest spots (no robot's path ends there) nearest to the last stop first, for task paths that end at parking. */
+  private readonly parkingNear: ParkingAfter = {
+    spots: new Int32Array(3),
+    find: (cell: number): number => freeParkingSpots(this.restSpots, this.context.distances, this.table, cell, this.parkingNear.spots),
   };
 
   step(tick: number, moves: Int32Array): number {
-    const { world, layout } = this.context;
+    const { world } = this.context;
     const robots = world.robotCount;
     let justFreed = false;
     for (let r = 0; r < robots; r++) {
@@ -158,7 +165,7 @@ export class FlowBatch implements Policy {
     for (let r = 0; r < robots; r++) {
       if (world.robotPhase[r] !== Phase.Idle || world.robotTask[r] >= 0) continue;
       idle = true;
-      if (this.pathEnd[r] > tick || layout.kind[world.robotCell[r]] === CellKind.Parking) continue;
+      if (this.pathEnd[r] > tick || this.isRestSpot[world.robotCell[r]]) continue;
       if (!this.park(r, tick)) parkingPending = true;
     }
     let following = false;
@@ -263,19 +270,20 @@ export class FlowBatch implements Policy {
    * spot free: it stays put until the open list or the reservations change).
    */
   private park(robot: number, tick: number): boolean {
-    const { world, layout, distances } = this.context;
+    const { world, distances } = this.context;
     const table = this.table;
     if (tick < this.parkRetryTick[robot]) return false;
     if (this.parkTriedVersion[robot] === world.version && this.parkTriedRevision[robot] === table.revision) return true;
     const cell = world.robotCell[robot];
-    const spots = freeParkingSpots(layout, distances, table, cell);
-    if (spots.length === 0) {
+    const spots = this.spotBuffer;
+    const count = freeParkingSpots(this.restSpots, distances, table, cell, spots);
+    if (count === 0) {
       this.parkTriedVersion[robot] = world.version;
       this.parkTriedRevision[robot] = table.revision;
       return true;
     }
     table.release(robot, tick);
-    for (let i = 0; i < Math.min(3, spots.length); i++) {
+    for (let i = 0; i < count; i++) {
       const path = planRest(this.planner, robot, cell, tick, spots[i]);
       if (path) {
         table.reserve(robot, path, tick);

@@ -8,7 +8,6 @@
  * convention (see sim/policy.ts).
  */
 import { unreachable, type DistanceTables } from '../../sim/distance-table.ts';
-import type { Layout } from '../../sim/layout.ts';
 import type { ReservationTable } from '../../sim/reservation-table.ts';
 import type { SpaceTimeAStar } from '../../sim/space-time-astar.ts';
 import type { World } from '../../sim/world.ts';
@@ -26,13 +25,19 @@ export interface Planner {
   distances: DistanceTables;
 }
 
+/** Where a task path goes on to after its last stop: `find(lastStop)` writes up to three free rest spots, nearest first, into `spots` and returns how many. */
+export interface ParkingAfter {
+  find(lastStop: number): number;
+  readonly spots: Int32Array;
+}
+
 /**
  * Plans robot r, standing at `from` at `tick`, through the task's stops; null when any leg
  * fails. With `parkingAfter`, the path does not end on the last stop: it goes on to the
- * first of those parking cells it can rest on (in the order given, at most three tried),
+ * first of those rest spots it can rest on (in the order given, at most three tried),
  * and the plan fails when none works.
  */
-export function planTask(planner: Planner, robot: number, from: number, tick: number, task: number, parkingAfter?: (lastStop: number) => number[]): TaskPlan | null {
+export function planTask(planner: Planner, robot: number, from: number, tick: number, task: number, parkingAfter?: ParkingAfter): TaskPlan | null {
   const { world } = planner;
   const stops: { cell: number; hold: number }[] = [{ cell: world.taskPickup[task], hold: world.taskPickupTicks[task] }];
   stops.push({ cell: world.taskDrop[task], hold: world.taskDropTicks[task] });
@@ -40,13 +45,13 @@ export function planTask(planner: Planner, robot: number, from: number, tick: nu
   if (!parkingAfter) return planStops(planner, robot, from, tick, stops, true);
   const lastStop = stops[stops.length - 1].cell;
   // Without a free spot the plan cannot end well: fail before searching the task's legs.
-  const spots = parkingAfter(lastStop);
-  if (spots.length === 0) return null;
+  const spotCount = parkingAfter.find(lastStop);
+  if (spotCount === 0) return null;
   const plan = planStops(planner, robot, from, tick, stops, false);
   if (!plan) return null;
   const arrival = tick + plan.path.length - 1;
-  for (const spot of spots.slice(0, 3)) {
-    const leg = planRest(planner, robot, lastStop, arrival, spot);
+  for (let i = 0; i < spotCount; i++) {
+    const leg = planRest(planner, robot, lastStop, arrival, parkingAfter.spots[i]);
     if (!leg) continue;
     const path = new Int32Array(plan.path.length + leg.length - 1);
     path.set(plan.path);
@@ -119,10 +124,29 @@ export function planRest(planner: Planner, robot: number, from: number, tick: nu
   });
 }
 
-/** Parking spots that are not the end of any robot's path, reachable from `from`, nearest first (ties: reading order). */
-export function freeParkingSpots(layout: Layout, distances: DistanceTables, table: ReservationTable, from: number): number[] {
+/**
+ * The rest spots (marked parking, then the fleet's rest cells: sim/rest-cells.ts) that are
+ * not the end of any robot's path and are reachable from `from`, nearest first (ties: the
+ * earlier in `spots`, so marked parking first). Writes at most `out.length` of them into
+ * `out` and returns how many; allocates nothing (it runs for every parking decision).
+ */
+export function freeParkingSpots(spots: Int32Array, distances: DistanceTables, table: ReservationTable, from: number, out: Int32Array): number {
   const toFrom = distances.to(from);
-  const spots: number[] = [];
-  for (const c of layout.parking) if (table.endRobot[c] < 0 && toFrom[c] < unreachable) spots.push(c);
-  return spots.sort((a, b) => toFrom[a] - toFrom[b] || a - b);
+  const endRobot = table.endRobot;
+  const limit = out.length;
+  let count = 0;
+  for (let i = 0; i < spots.length; i++) {
+    const c = spots[i];
+    const d = toFrom[c];
+    if (endRobot[c] >= 0 || d >= unreachable) continue;
+    if (count === limit && d >= toFrom[out[limit - 1]]) continue;
+    // Insertion into the short sorted buffer; equal distances keep list order.
+    let j = count < limit ? count++ : limit - 1;
+    while (j > 0 && toFrom[out[j - 1]] > d) {
+      out[j] = out[j - 1];
+      j--;
+    }
+    out[j] = c;
+  }
+  return count;
 }

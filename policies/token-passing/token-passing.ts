@@ -22,6 +22,7 @@ import { z } from 'zod';
 import { CellKind } from '../../sim/layout.ts';
 import type { Policy, PolicyContext } from '../../sim/policy.ts';
 import { ReservationTable } from '../../sim/reservation-table.ts';
+import { restSpotsForFleet } from '../../sim/rest-cells.ts';
 import { SpaceTimeAStar } from '../../sim/space-time-astar.ts';
 import { Phase } from '../../sim/world.ts';
 import { freeParkingSpots, planRest, planTask, type Planner } from '../shared/task-path.ts';
@@ -49,13 +50,47 @@ export class TokenPassing implements Policy {
   private readonly pathEnd: Int32Array;
   /** Tick at which each robot reaches the pickup of its task (for swaps). */
   private readonly pickupTick: Int32Array;
-  /** (world version, table revision) at each robot's last fruitless token request. */
+  /** (world version, rest revision) at each robot's last fruitless token request. */
   private readonly triedVersion: Float64Array;
   private readonly triedRevision: Float64Array;
+  /**
+   * Bumped whenever the cell where some robot's path ends changes (a rest begins or is
+   * given up). Whether a task may be taken depends only on these cells and the open list,
+   * so a robot that found nothing asks again only when one of the two changed; the
+   * reservation table's own revision moves on every reservation and would wake every idle
+   * robot after every plan.
+   */
+  private restRevision = 0;
+  /** The cell where each robot's reserved path ends. */
+  private readonly endCell: Int32Array;
+  /** 1 on pickup, drop and storage cells. */
+  private readonly isTaskEndpoint: Uint8Array;
+  /**
+   * The eligible-task list, rebuilt at most once per change of (world version, rest
+   * revision): for each pickup cell, the first open task (release order) none of whose
+   * endpoints ends a robot's path. The nearest eligible task for a robot is then the
+   * nearest of these, ties to the earlier in the open list, as a scan of every open task
+   * would give.
+   */
+  private candidates = new Int32Array(64);
+  private candidateCount = 0;
+  private candidatesVersion = -1;
+  private candidatesRevision = -1;
+  private readonly pickupMark: Int32Array;
+  private pickupMarkId = 0;
+  /** Open tasks held back at the last rebuild (an endpoint ends a robot's path), and their task-ticks since the start. */
+  private heldBack = 0;
+  private heldBackTicks = 0;
+  private heldBackSince = 0;
+  private readonly requestQueue: Int32Array;
   /** Consecutive failed plans per robot, and the tick of its next try. */
   private readonly failures: Int32Array;
   private readonly retryAt: Float64Array;
   private readonly swapRetryAt: Float64Array;
+  /** Where robots may rest: marked parking, then the fleet's rest cells (sim/rest-cells.ts). */
+  private readonly restSpots: Int32Array;
+  private readonly isRestSpot: Uint8Array;
+  private readonly spotBuffer = new Int32Array(3);
   private taskSwaps = 0;
   private requests = 0;
   private failedPlans = 0;
@@ -75,29 +110,46 @@ export class TokenPassing implements Policy {
     this.failures = new Int32Array(world.robotCount);
     this.retryAt = new Float64Array(world.robotCount);
     this.swapRetryAt = new Float64Array(world.robotCount);
-    for (let r = 0; r < world.robotCount; r++) this.table.rest(r, world.robotCell[r], 0);
+    this.restSpots = restSpotsForFleet(layout, world.robotCount);
+    this.isRestSpot = new Uint8Array(layout.cellCount);
+    for (const c of this.restSpots) this.isRestSpot[c] = 1;
+    this.isTaskEndpoint = new Uint8Array(layout.cellCount);
+    for (let c = 0; c < layout.cellCount; c++) {
+      const kind = layout.kind[c];
+      if (kind === CellKind.Pickup || kind === CellKind.Drop || kind === CellKind.Storage) this.isTaskEndpoint[c] = 1;
+    }
+    this.pickupMark = new Int32Array(layout.cellCount);
+    // Every robot asks at most once per step, plus once more when displaced by a swap.
+    this.requestQueue = new Int32Array(2 * world.robotCount);
+    this.endCell = new Int32Array(world.robotCount);
+    for (let r = 0; r < world.robotCount; r++) {
+      this.table.rest(r, world.robotCell[r], 0);
+      this.endCell[r] = world.robotCell[r];
+    }
   }
 
   step(tick: number, moves: Int32Array): number {
     const { world } = this.context;
     const robots = world.robotCount;
     let retryTick = Infinity;
+    this.countHeldBack(tick);
     // Token requests in robot order; displaced robots (swaps) join the end of the queue.
-    const requests: number[] = [];
-    for (let r = 0; r < robots; r++) if (this.pathEnd[r] <= tick) requests.push(r);
+    const requests = this.requestQueue;
+    let queued = 0;
+    for (let r = 0; r < robots; r++) if (this.pathEnd[r] <= tick) requests[queued++] = r;
     // Robots displaced by a swap ask again in the same tick, but may not displace in turn:
     // chains of swaps cost a plan per link and rarely pay (a bound on the paper's recursion).
-    const firstDisplaced = requests.length;
-    for (let i = 0; i < requests.length; i++) {
+    const firstDisplaced = queued;
+    for (let i = 0; i < queued; i++) {
       const r = requests[i];
       if (world.robotPhase[r] !== Phase.Idle) continue;
-      if (this.triedVersion[r] === world.version && this.triedRevision[r] === this.table.revision) continue;
+      if (this.triedVersion[r] === world.version && this.triedRevision[r] === this.wakeRevision()) continue;
       if (this.retryAt[r] > tick) {
         retryTick = Math.min(retryTick, this.retryAt[r]);
         continue;
       }
       const displaced = this.request(r, tick, i < firstDisplaced);
-      if (displaced >= 0) requests.push(displaced);
+      if (displaced >= 0) requests[queued++] = displaced;
       if (displaced === -2) {
         // Back off after failed plans (1, 2, 4, 8, 16 ticks): a crowded floor rarely clears in one tick.
         this.failures[r]++;
@@ -114,34 +166,109 @@ export class TokenPassing implements Policy {
         following = true;
       }
     }
+    // The held-back count from now on reflects this step's assignments and rests.
+    this.refreshCandidates();
     return following ? tick + 1 : retryTick;
   }
+
+  /** Adds the task-ticks held back since the last step (the count is constant between steps: only steps change it). */
+  private countHeldBack(tick: number): void {
+    if (tick > this.heldBackSince) {
+      this.heldBackTicks += this.heldBack * (tick - this.heldBackSince);
+      this.heldBackSince = tick;
+    }
+    this.refreshCandidates();
+  }
+
+  /** Rebuilds the eligible-task list (and the held-back count) when the open list or a path end changed. */
+  private refreshCandidates(): void {
+    const world = this.context.world;
+    if (this.candidatesVersion === world.version && this.candidatesRevision === this.restRevision) return;
+    this.candidatesVersion = world.version;
+    this.candidatesRevision = this.restRevision;
+    const endRobot = this.table.endRobot;
+    const mark = this.pickupMark;
+    const id = ++this.pickupMarkId;
+    const open = world.openTasks;
+    let count = 0;
+    let held = 0;
+    for (let i = 0; i < open.length; i++) {
+      const task = open[i];
+      const pickup = world.taskPickup[task];
+      const back = world.taskReturn[task];
+      if (endRobot[pickup] >= 0 || endRobot[world.taskDrop[task]] >= 0 || (back >= 0 && endRobot[back] >= 0)) {
+        held++;
+        continue;
+      }
+      if (mark[pickup] === id) continue;
+      mark[pickup] = id;
+      if (count === this.candidates.length) {
+        const grown = new Int32Array(2 * count);
+        grown.set(this.candidates);
+        this.candidates = grown;
+      }
+      this.candidates[count++] = task;
+    }
+    this.candidateCount = count;
+    this.heldBack = held;
+  }
+
+  /**
+   * The open task with the nearest pickup whose endpoints end no other robot's path (ties:
+   * the earlier in release order), or -1. `distance` receives its pickup distance.
+   */
+  private nearestEligible(robot: number, cell: number, toRobot: Int32Array): number {
+    const world = this.context.world;
+    let best = -1;
+    let bestDistance = Infinity;
+    if (this.isTaskEndpoint[cell] && this.table.endRobot[cell] === robot) {
+      // The robot rests on a task endpoint (a drop, or a shelf's storage point): tasks ending
+      // there are open to it alone, so the shared list does not apply; scan every open task.
+      const endRobot = this.table.endRobot;
+      const open = world.openTasks;
+      for (let i = 0; i < open.length; i++) {
+        const task = open[i];
+        const pickup = world.taskPickup[task];
+        const d = toRobot[pickup];
+        if (d >= bestDistance) continue;
+        const drop = world.taskDrop[task];
+        const back = world.taskReturn[task];
+        if (endRobot[pickup] >= 0 && endRobot[pickup] !== robot) continue;
+        if (endRobot[drop] >= 0 && endRobot[drop] !== robot) continue;
+        if (back >= 0 && endRobot[back] >= 0 && endRobot[back] !== robot) continue;
+        best = task;
+        bestDistance = d;
+      }
+    } else {
+      this.refreshCandidates();
+      const candidates = this.candidates;
+      for (let i = 0; i < this.candidateCount; i++) {
+        const task = candidates[i];
+        const d = toRobot[world.taskPickup[task]];
+        if (d < bestDistance) {
+          best = task;
+          bestDistance = d;
+        }
+      }
+    }
+    this.bestDistance = bestDistance;
+    return best;
+  }
+  private bestDistance = Infinity;
 
   /**
    * One token request. Returns the robot displaced by a swap (>= 0), -1 when done, -2 when
    * planning failed and the robot should ask again next tick.
    */
   private request(robot: number, tick: number, swapsAllowed: boolean): number {
-    const { world, distances, layout } = this.context;
+    const { world, distances } = this.context;
     const table = this.table;
     this.requests++;
     const cell = world.robotCell[robot];
     const toRobot = distances.to(cell);
-    const endRobot = table.endRobot;
-    const freeEndpoint = (c: number, owner: number) => endRobot[c] < 0 || endRobot[c] === robot || endRobot[c] === owner;
-
     // Candidates: nearest pickup first; ties in release order (the open list order).
-    let best = -1;
-    let bestDistance = Infinity;
-    for (const task of world.openTasks) {
-      const d = toRobot[world.taskPickup[task]];
-      if (d >= bestDistance) continue;
-      if (!freeEndpoint(world.taskPickup[task], -1) || !freeEndpoint(world.taskDrop[task], -1)) continue;
-      const back = world.taskReturn[task];
-      if (back >= 0 && !freeEndpoint(back, -1)) continue;
-      best = task;
-      bestDistance = d;
-    }
+    const best = this.nearestEligible(robot, cell, toRobot);
+    const bestDistance = this.bestDistance;
     if (this.swaps && swapsAllowed && this.swapRetryAt[robot] <= tick) {
       const displaced = this.trySwap(robot, tick, best >= 0 ? bestDistance : Infinity);
       if (displaced !== -1) return displaced;
@@ -158,28 +285,28 @@ export class TokenPassing implements Policy {
       }
       this.failedPlans++;
       table.rest(robot, cell, tick);
+      this.noteEnd(robot, cell);
       this.pathEnd[robot] = tick;
       return -2;
     }
-    // Nothing to take: leave task endpoints and aisles for parking, else stay.
-    const kind = layout.kind[cell];
-    if (kind !== CellKind.Parking) {
+    // Nothing to take: leave task endpoints and aisles for a rest spot, else stay.
+    if (!this.isRestSpot[cell]) {
       const parked = this.park(robot, cell, tick);
       if (parked === false) return -2;
     }
     this.triedVersion[robot] = world.version;
-    this.triedRevision[robot] = table.revision;
+    this.triedRevision[robot] = this.wakeRevision();
     return -1;
   }
 
-  /** Plans a move to the nearest free parking spot. True when planned, null when none is free, false when planning failed. */
+  /** Plans a move to the nearest free rest spot. True when planned, null when none is free, false when planning failed. */
   private park(robot: number, cell: number, tick: number): boolean | null {
-    const { layout, distances } = this.context;
     const table = this.table;
-    const spots = freeParkingSpots(layout, distances, table, cell);
-    if (spots.length === 0) return null;
+    const spots = this.spotBuffer;
+    const count = freeParkingSpots(this.restSpots, this.context.distances, table, cell, spots);
+    if (count === 0) return null;
     table.release(robot, tick);
-    for (let i = 0; i < Math.min(3, spots.length); i++) {
+    for (let i = 0; i < count; i++) {
       const path = planRest(this.planner, robot, cell, tick, spots[i]);
       if (path) {
         this.commit(robot, path, tick, -1);
@@ -188,6 +315,7 @@ export class TokenPassing implements Policy {
     }
     this.failedPlans++;
     table.rest(robot, cell, tick);
+    this.noteEnd(robot, cell);
     this.pathEnd[robot] = tick;
     return false;
   }
@@ -246,6 +374,7 @@ export class TokenPassing implements Policy {
       const earlier = leg !== null && tick + leg.length - 1 < this.pickupTick[other];
       const plan = earlier ? planTask(this.planner, robot, cell, tick, task) : null;
       if (plan && plan.pickupTick < this.pickupTick[other]) {
+        this.noteEnd(other, otherCell);
         world.unassign(other);
         this.pathEnd[other] = tick;
         this.pickupTick[other] = -1;
@@ -261,14 +390,37 @@ export class TokenPassing implements Policy {
     return -1;
   }
 
+  /**
+   * The revision that wakes a robot that found nothing. Plain token passing: the rest
+   * revision (what it may take depends only on the open list and path ends). With swaps
+   * the answer also depends on time (whether this robot would reach another's pickup
+   * first), so any reservation change wakes it, as before the rest revision existed; the
+   * swap retry delay bounds the cost.
+   */
+  private wakeRevision(): number {
+    return this.swaps ? this.table.revision : this.restRevision;
+  }
+
+  /** Records where robot r's reserved path now ends; a change wakes robots that found nothing. */
+  private noteEnd(robot: number, cell: number): void {
+    if (this.endCell[robot] !== cell) {
+      this.endCell[robot] = cell;
+      this.restRevision++;
+    }
+  }
+
   private commit(robot: number, path: Int32Array, tick: number, pickupTick: number): void {
+    this.noteEnd(robot, path[path.length - 1]);
     this.table.reserve(robot, path, tick);
     this.pathEnd[robot] = tick + path.length - 1;
     this.pickupTick[robot] = pickupTick;
   }
 
   counters(): Record<string, number> {
+    // Up to the end of the run: nothing changes the count after the last step.
+    this.countHeldBack(this.context.world.currentTick);
     return {
+      heldBackTaskSeconds: this.heldBackTicks * this.context.tickSeconds,
       tokenRequests: this.requests,
       searches: this.planner.search.searches,
       unreachableSkips: this.planner.search.unreachableSkips,
