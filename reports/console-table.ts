@@ -134,8 +134,17 @@ export function renderRunTable(summary: RunSummary): string {
       `Little's law check: tasks in system ${little.tasksInSystem.toFixed(2)} vs throughput x lead time ${little.throughputTimesLeadTime.toFixed(2)} (gap ${(little.relativeGap * 100).toFixed(1)}%${little.relativeGap > 0.1 ? '; a large gap means the run is not in steady state or demand exceeds capacity' : ''})`,
     );
   }
-  if (!summary.wellFormed) {
+  if (!summary.wellFormed && summary.wellFormedWithRestCells) {
+    lines.push(`${summary.robots} robots on fewer parking spots: the policy rests ${summary.restCellsUsed} of them on rest cells that keep the floor well-formed (see check)`);
+  } else if (!summary.wellFormed) {
     lines.push(`warning: the floor is not well-formed for ${summary.robots} robots (${summary.wellFormedViolation}); planned policies may stall and leave tasks undone`);
+  }
+  const held = summary.policyLimits?.heldBackTaskSecondsPerHour;
+  if (held) {
+    const half = held.halfWidth === null ? '' : ` ± ${Math.round(held.halfWidth).toLocaleString('en-US')}`;
+    lines.push(
+      `held back by the endpoint rule: ${Math.round(held.mean).toLocaleString('en-US')}${half} task-s/h (on average ${(held.mean / 3600).toFixed(1)} open tasks that no robot may take because their pickup or drop ends another robot's path; whole run)`,
+    );
   }
   const busiest = [
     work.busiest ? `${workName.replace(/s$/, '')} ${work.busiest.cell} ${(work.busiest.utilisation * 100).toFixed(1)}%` : null,

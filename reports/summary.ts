@@ -21,6 +21,7 @@ import type { Scenario } from '../sim/model.ts';
 import type { ReplicationRecord } from '../sim/engine.ts';
 import { RunError } from '../sim/errors.ts';
 import { checkWellFormed, parseLayout } from '../sim/layout.ts';
+import { restCellsForFleet, withRestCells } from '../sim/rest-cells.ts';
 import { batchMeansInterval, batchMeansRule, clipInterval, intervalOf, mserCut, type Interval } from './stats/index.ts';
 import { windowMetrics, type WindowMetrics } from './window-metrics.ts';
 import { assessStability, type StabilityReport } from './stability.ts';
@@ -114,6 +115,17 @@ export interface RunSummary {
   /** Well-formedness of the floor for this fleet (Ma et al. 2017); planned policies need it to finish every task. */
   wellFormed: boolean;
   wellFormedViolation: string | null;
+  /** Rest cells the policy rests robots on beyond the parking spots (sim/rest-cells.ts); 0 when it uses none. */
+  restCellsUsed: number;
+  /** Well-formed once those rest cells count as non-task endpoints (equals wellFormed when none are used). */
+  wellFormedWithRestCells: boolean;
+  /**
+   * What holds the policy back, from its own counters; null when it reports none.
+   * heldBackTaskSecondsPerHour: token passing's open tasks that no robot may take because
+   * their pickup or drop ends another robot's path, in task-seconds per simulated hour over
+   * the whole run (divide by 3600 for the mean number of such tasks).
+   */
+  policyLimits: { heldBackTaskSecondsPerHour: Interval } | null;
   agentSteps: number;
   safety: string;
   timing: { wallSeconds: number; agentStepsPerSecond: number; planningSeconds: number; planningSecondsPerSimulatedHour: number; planningShare: number };
@@ -273,6 +285,14 @@ export function summarize(scenario: Scenario, records: ReplicationRecord[], wall
 
   const layout = parseLayout(scenario.layoutText);
   const wellFormed = checkWellFormed(layout, scenario.fleet.robots);
+  const restCellsUsed = records[0].policyCounters.restCells ?? 0;
+  const wellFormedWithRestCells =
+    wellFormed.wellFormed || (restCellsUsed > 0 && checkWellFormed(withRestCells(layout, restCellsForFleet(layout, scenario.fleet.robots)), scenario.fleet.robots).wellFormed);
+  const heldBack = records.map((r) => r.policyCounters.heldBackTaskSeconds);
+  // A whole-run rate per replication (the policy counts over the whole run): replications only, never batches.
+  const policyLimits = heldBack.every((v) => v !== undefined)
+    ? { heldBackTaskSecondsPerHour: bounded(intervalOf(heldBack.map((v) => v / scenario.run.hours), confidence), 'nonNegative') }
+    : null;
   const stations = stationRows(layout, records, perReplication);
   const sum = (pick: (r: ReplicationRecord) => number) => records.reduce((s, r) => s + pick(r), 0);
   const demand = scenario.demand;
@@ -377,6 +397,9 @@ export function summarize(scenario: Scenario, records: ReplicationRecord[], wall
     stations,
     wellFormed: wellFormed.wellFormed,
     wellFormedViolation: wellFormed.violation,
+    restCellsUsed,
+    wellFormedWithRestCells,
+    policyLimits,
     agentSteps,
     safety: safetyNote,
     timing: {

@@ -92,4 +92,32 @@ describe('token passing (Ma, Li, Kumar, Koenig, AAMAS 2017)', () => {
     expect(r.delivered).toBeGreaterThan(1000);
     expect(r.metrics.episodes.length).toBe(0);
   });
+
+  it('counts the task-seconds a task is held back because its drop ends another robot\'s path (worked by hand)', () => {
+    // Two robots on H(1,1) and H(1,2); two tasks released at 0 s, both P(3,1) -> D(7,1),
+    // pickup 2 s, drop 1 s, 1 s per cell. Robot 0 takes task 0 at 0 s: 2 cells to P, 2 s
+    // pickup, 4 cells to D, 1 s drop; its path ends on D, so task 1 (same drop) may not be
+    // taken by robot 1. At 2 + 2 + 4 + 1 = 9 s robot 0 has delivered, rests on D, and takes
+    // task 1 itself (tasks ending where it rests are open to it). Held back: task 1 for 9 s.
+    const layout = `
+#########
+#H.P...D#
+#H.....D#
+#########`;
+    const w = 9;
+    const trace = (drops: number[]): TraceTask[] => drops.map((drop) => ({ releaseSeconds: 0, pickup: 1 * w + 3, drop }));
+    const run = (tasks: TraceTask[]) =>
+      runReplications(
+        makeScenario({ layout, robots: 2, policy: 'token-passing', pickupSeconds: 2, dropSeconds: 1, demand: { kind: 'trace', mode: 'delivery', tracePath: 'inline', tasks }, hours: 0.05, warmup: 0 }),
+      )[0];
+    const same = run(trace([1 * w + 7, 1 * w + 7]));
+    expect(same.delivered).toBe(2);
+    expect(same.collisions).toBe(0);
+    expect(same.policyCounters.heldBackTaskSeconds).toBe(9);
+    // Different drops: nothing is held back (robot 1 takes task 1 at once).
+    const different = run(trace([1 * w + 7, 2 * w + 7]));
+    expect(different.delivered).toBe(2);
+    expect(different.policyCounters.heldBackTaskSeconds).toBe(0);
+  });
 });
+

@@ -300,6 +300,7 @@ export class FlowBatch implements Policy {
 
   counters(): Record<string, number> {
     return {
+      restCells: this.restSpots.length - this.context.layout.parking.length,
       epochs: this.epochs,
       rounds: this.rounds,
       candidateTasks: this.candidateTasks,

@@ -421,6 +421,7 @@ export class TokenPassing implements Policy {
     this.countHeldBack(this.context.world.currentTick);
     return {
       heldBackTaskSeconds: this.heldBackTicks * this.context.tickSeconds,
+      restCells: this.restSpots.length - this.context.layout.parking.length,
       tokenRequests: this.requests,
       searches: this.planner.search.searches,
       unreachableSkips: this.planner.search.unreachableSkips,
