@@ -13,7 +13,7 @@ import type { Scenario } from '../sim/model.ts';
 import { DistanceTables } from '../sim/distance-table.ts';
 import { runReplication, type ReplicationRecord } from '../sim/engine.ts';
 import { checkWellFormed, parseLayout, type Layout } from '../sim/layout.ts';
-import { TaskState, World } from '../sim/world.ts';
+import { Phase, TaskState, World } from '../sim/world.ts';
 import { flowBatch } from '../policies/flow-batch/index.ts';
 import { flowBatchOptions } from '../policies/flow-batch/flow-batch.ts';
 import { makeScenario } from './helpers.ts';
@@ -69,8 +69,9 @@ describe('flow-batch on the demo hall (1 simulated hour, 900 tasks/h)', () => {
     expect(record.delivered).toBeGreaterThan(0.95 * record.released);
   });
 
-  it('40 robots on the demo hall itself (38 parking spots, not well-formed): still no collision', () => {
+  it('40 robots on the demo hall itself (38 parking spots, so 2 rest at rest cells): no collision, keeps up with demand', () => {
     const { record } = run(loadScenarioFile(demoPath, { robots: 40, hours: 1 }));
+    expect(record.policyCounters.restCells).toBe(2);
     expect(record.collisions).toBe(0);
     expect(record.illegalSteps).toBe(0);
     expect(record.delivered).toBeGreaterThan(0.9 * record.released);
@@ -276,5 +277,35 @@ describe('flow-batch restAt', () => {
     // With rests on the drop, a parcel for a chute waits until the robot before it has left
     // the chute and found a new task (the token-passing endpoint rule); at parking it does not.
     expect(lead('parking')).toBeLessThan(0.85 * lead('drop'));
+  });
+});
+
+describe('flow-batch pickup queue limit', () => {
+  it('never has more robots bound for one pickup than pickupQueueLimit; without the limit a deep backlog queues more', () => {
+    const scenario = loadScenarioFile(demoPath, { robots: 100, hours: 0.5, tasksPerHour: 6000 });
+    const mostBound = (options: Record<string, unknown>) => {
+      const layout = parseLayout(scenario.layoutText);
+      let most = 0;
+      const bound = new Int32Array(layout.cellCount);
+      const record = runReplication(
+        { scenario: { ...scenario, policy: { name: 'flow-batch', options } }, layout, distances: new DistanceTables(layout), policy: flowBatch, policyOptions: flowBatchOptions.parse(options) },
+        0,
+        {
+          afterMotion: (_tick, world) => {
+            bound.fill(0);
+            for (let r = 0; r < world.robotCount; r++) {
+              if (world.robotPhase[r] !== Phase.ToPickup) continue;
+              const pickup = world.taskPickup[world.robotTask[r]];
+              most = Math.max(most, ++bound[pickup]);
+            }
+          },
+        },
+      );
+      expect(record.collisions).toBe(0);
+      return most;
+    };
+    expect(mostBound({ pickupQueueLimit: 3 })).toBeLessThanOrEqual(3);
+    expect(mostBound({})).toBeLessThanOrEqual(4);
+    expect(mostBound({ pickupQueueLimit: 0 })).toBeGreaterThan(4);
   });
 });

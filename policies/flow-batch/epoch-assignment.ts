@@ -33,8 +33,11 @@
  */
 import type { DistanceTables } from '../../sim/distance-table.ts';
 import { unreachable } from '../../sim/distance-table.ts';
-import type { World } from '../../sim/world.ts';
+import { Phase, type World } from '../../sim/world.ts';
 import { FORBIDDEN_COST, solveAssignment } from '../shared/assignment.ts';
+
+// Read once: imported bindings are getters under the TypeScript loader, and these are read per robot per step.
+const phaseToPickup = Phase.ToPickup;
 
 export interface EpochAssignmentRequest {
   world: World;
@@ -49,6 +52,8 @@ export interface EpochAssignmentRequest {
   ageWeight: number;
   /** At most this many open tasks (oldest first) enter the matrix. */
   maxTasks: number;
+  /** At most this many robots assigned to one pickup and not yet there (0: no limit). */
+  pickupQueueLimit: number;
 }
 
 export interface EpochPair {
@@ -68,18 +73,40 @@ export interface EpochAssignment {
 /** Dispatches one epoch; keeps a per-robot scratch mark sized once. */
 export class EpochAssigner {
   private readonly isFree: Uint8Array;
+  /** Robots bound for each pickup cell (plus candidates taken this epoch), valid where `committedStamp` is current. */
+  private readonly committed: Int32Array;
+  private readonly committedStamp: Int32Array;
+  private stamp = 0;
 
-  constructor(robotCount: number) {
+  constructor(robotCount: number, cellCount: number) {
     this.isFree = new Uint8Array(robotCount);
+    this.committed = new Int32Array(cellCount);
+    this.committedStamp = new Int32Array(cellCount);
   }
 
   assign(request: EpochAssignmentRequest): EpochAssignment {
-    const { world, distances, endRobot, freeRobots, tick, tickSeconds, ageWeight, maxTasks } = request;
+    const { world, distances, endRobot, freeRobots, tick, tickSeconds, ageWeight, maxTasks, pickupQueueLimit } = request;
     const rows = freeRobots.length;
     if (rows === 0 || world.openTasks.length === 0) return { pairs: [], candidates: 0 };
     const isFree = this.isFree;
     isFree.fill(0);
     for (const r of freeRobots) isFree[r] = 1;
+
+    // Pickup queues: robots already bound for each pickup.
+    const committed = this.committed;
+    const committedStamp = this.committedStamp;
+    const stamp = ++this.stamp;
+    if (pickupQueueLimit > 0) {
+      for (let r = 0; r < world.robotCount; r++) {
+        if (world.robotPhase[r] !== phaseToPickup) continue;
+        const pickup = world.taskPickup[world.robotTask[r]];
+        if (committedStamp[pickup] !== stamp) {
+          committedStamp[pickup] = stamp;
+          committed[pickup] = 0;
+        }
+        committed[pickup]++;
+      }
+    }
 
     // Candidate tasks, oldest first (the open list is in release order).
     const candidates: number[] = [];
@@ -92,7 +119,18 @@ export class EpochAssigner {
         const rester = endRobot[endpoints[e]];
         if (rester >= 0 && !isFree[rester]) usable = false;
       }
-      if (usable) candidates.push(task);
+      if (!usable) continue;
+      if (pickupQueueLimit > 0) {
+        // A full queue takes no more robots this epoch, counting the candidates that may join it.
+        const pickup = world.taskPickup[task];
+        if (committedStamp[pickup] !== stamp) {
+          committedStamp[pickup] = stamp;
+          committed[pickup] = 0;
+        }
+        if (committed[pickup] >= pickupQueueLimit) continue;
+        committed[pickup]++;
+      }
+      candidates.push(task);
     }
     const cols = candidates.length;
     if (cols === 0) return { pairs: [], candidates: 0 };

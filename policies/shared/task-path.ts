@@ -39,24 +39,30 @@ export interface ParkingAfter {
  */
 export function planTask(planner: Planner, robot: number, from: number, tick: number, task: number, parkingAfter?: ParkingAfter): TaskPlan | null {
   const { world } = planner;
-  const stops: { cell: number; hold: number }[] = [{ cell: world.taskPickup[task], hold: world.taskPickupTicks[task] }];
-  stops.push({ cell: world.taskDrop[task], hold: world.taskDropTicks[task] });
-  if (world.taskReturn[task] >= 0) stops.push({ cell: world.taskReturn[task], hold: world.taskReturnTicks[task] });
-  if (!parkingAfter) return planStops(planner, robot, from, tick, stops, true);
-  const lastStop = stops[stops.length - 1].cell;
+  stopCells[0] = world.taskPickup[task];
+  stopHolds[0] = world.taskPickupTicks[task];
+  stopCells[1] = world.taskDrop[task];
+  stopHolds[1] = world.taskDropTicks[task];
+  let stopCount = 2;
+  if (world.taskReturn[task] >= 0) {
+    stopCells[2] = world.taskReturn[task];
+    stopHolds[2] = world.taskReturnTicks[task];
+    stopCount = 3;
+  }
+  if (!parkingAfter) {
+    const pickupTick = planStops(planner, robot, from, tick, stopCount, true);
+    return pickupTick < 0 ? null : { path: assemble(stopCount, null), pickupTick };
+  }
+  const lastStop = stopCells[stopCount - 1];
   // Without a free spot the plan cannot end well: fail before searching the task's legs.
   const spotCount = parkingAfter.find(lastStop);
   if (spotCount === 0) return null;
-  const plan = planStops(planner, robot, from, tick, stops, false);
-  if (!plan) return null;
-  const arrival = tick + plan.path.length - 1;
+  const pickupTick = planStops(planner, robot, from, tick, stopCount, false);
+  if (pickupTick < 0) return null;
+  const arrival = tick + legTicks(stopCount);
   for (let i = 0; i < spotCount; i++) {
     const leg = planRest(planner, robot, lastStop, arrival, parkingAfter.spots[i]);
-    if (!leg) continue;
-    const path = new Int32Array(plan.path.length + leg.length - 1);
-    path.set(plan.path);
-    path.set(leg.subarray(1), plan.path.length);
-    return { path, pickupTick: plan.pickupTick };
+    if (leg) return { path: assemble(stopCount, leg), pickupTick };
   }
   // No parking spot to go on to: no plan. Resting on the drop instead would block it for
   // every other task (measured on the demo hall with 40 robots and 38 spots: 3377 instead
@@ -64,50 +70,77 @@ export function planTask(planner: Planner, robot: number, from: number, tick: nu
   return null;
 }
 
-/** `restAtEnd`: the last stop ends in a rest; otherwise it is held for its handling only. */
-function planStops(planner: Planner, robot: number, from: number, tick: number, stops: { cell: number; hold: number }[], restAtEnd: boolean): TaskPlan | null {
+// Scratch for one plan at a time (planning is single-threaded): the stops of the task and
+// the leg found to each, so the whole path is allocated once, at its final length.
+const stopCells = new Int32Array(3);
+const stopHolds = new Int32Array(3);
+const legs: (Int32Array | null)[] = [null, null, null];
+
+/** Ticks from the start of the first leg to the end of the last stop's handling. */
+function legTicks(stopCount: number): number {
+  let ticks = 0;
+  for (let i = 0; i < stopCount; i++) ticks += legs[i]!.length - 1 + stopHolds[i];
+  return ticks;
+}
+
+/** The planned legs with the handling waits between them, then `rest` (a leg from the last stop on) if given. */
+function assemble(stopCount: number, rest: Int32Array | null): Int32Array {
+  const path = new Int32Array(1 + legTicks(stopCount) + (rest ? rest.length - 1 : 0));
+  let offset = 0;
+  for (let i = 0; i < stopCount; i++) {
+    const leg = legs[i]!;
+    // Every leg after the first starts on the previous leg's last cell: skip it.
+    if (i === 0) {
+      path.set(leg, 0);
+      offset = leg.length;
+    } else {
+      path.set(leg.subarray(1), offset);
+      offset += leg.length - 1;
+    }
+    path.fill(stopCells[i], offset, offset + stopHolds[i]);
+    offset += stopHolds[i];
+  }
+  if (rest) path.set(rest.subarray(1), offset);
+  return path;
+}
+
+/**
+ * Searches the legs to the first `stopCount` stops into `legs`; returns the tick of arrival
+ * at the pickup, or -1 when a leg fails. `restAtEnd`: the last stop ends in a rest;
+ * otherwise it is held for its handling only.
+ */
+function planStops(planner: Planner, robot: number, from: number, tick: number, stopCount: number, restAtEnd: boolean): number {
   const { table, search, distances } = planner;
   let estimate = 64;
   let previous = from;
-  for (const stop of stops) {
-    estimate += 3 * distances.distance(previous, stop.cell) + stop.hold;
-    previous = stop.cell;
+  for (let i = 0; i < stopCount; i++) {
+    estimate += 3 * distances.distance(previous, stopCells[i]) + stopHolds[i];
+    previous = stopCells[i];
   }
   table.ensureHorizon(estimate);
-  const pieces: Int32Array[] = [];
   let cell = from;
   let t = tick;
   let pickupTick = -1;
-  for (let i = 0; i < stops.length; i++) {
-    const stop = stops[i];
-    const last = i === stops.length - 1;
+  for (let i = 0; i < stopCount; i++) {
+    const goal = stopCells[i];
+    const hold = stopHolds[i];
     const leg = search.search({
       robot,
       start: cell,
       startTick: t,
-      goal: stop.cell,
-      heuristic: distances.to(stop.cell),
-      holdTicks: stop.hold,
-      restForever: last && restAtEnd,
+      goal,
+      heuristic: distances.to(goal),
+      holdTicks: hold,
+      restForever: i === stopCount - 1 && restAtEnd,
     });
-    if (!leg) return null;
-    // Skip the first cell of every leg after the first: it repeats the previous leg's last cell.
-    pieces.push(i === 0 ? leg : leg.subarray(1));
+    if (!leg) return -1;
+    legs[i] = leg;
     t += leg.length - 1;
     if (i === 0) pickupTick = t;
-    if (stop.hold > 0) pieces.push(new Int32Array(stop.hold).fill(stop.cell));
-    t += stop.hold;
-    cell = stop.cell;
+    t += hold;
+    cell = goal;
   }
-  let length = 0;
-  for (const piece of pieces) length += piece.length;
-  const path = new Int32Array(length);
-  let offset = 0;
-  for (const piece of pieces) {
-    path.set(piece, offset);
-    offset += piece.length;
-  }
-  return { path, pickupTick };
+  return pickupTick;
 }
 
 /** Plans a move to `goal` ending in a rest there (parking). */

@@ -27,6 +27,10 @@ import { SpaceTimeAStar } from '../../sim/space-time-astar.ts';
 import { Phase } from '../../sim/world.ts';
 import { freeParkingSpots, planRest, planTask, type Planner } from '../shared/task-path.ts';
 
+// Read once: imported bindings are getters under the TypeScript loader, and these are read per robot per step.
+const phaseIdle = Phase.Idle;
+const phaseToPickup = Phase.ToPickup;
+
 export const tokenPassingOptions = z
   .object({
     maxExpansions: z.number().int().positive().default(200_000),
@@ -142,7 +146,7 @@ export class TokenPassing implements Policy {
     const firstDisplaced = queued;
     for (let i = 0; i < queued; i++) {
       const r = requests[i];
-      if (world.robotPhase[r] !== Phase.Idle) continue;
+      if (world.robotPhase[r] !== phaseIdle) continue;
       if (this.triedVersion[r] === world.version && this.triedRevision[r] === this.wakeRevision()) continue;
       if (this.retryAt[r] > tick) {
         retryTick = Math.min(retryTick, this.retryAt[r]);
@@ -331,7 +335,7 @@ export class TokenPassing implements Policy {
     const toRobot = distances.to(cell);
     const candidates: number[] = [];
     for (let other = 0; other < world.robotCount; other++) {
-      if (other === robot || world.robotPhase[other] !== Phase.ToPickup) continue;
+      if (other === robot || world.robotPhase[other] !== phaseToPickup) continue;
       const task = world.robotTask[other];
       const pickup = world.taskPickup[task];
       const d = toRobot[pickup];
