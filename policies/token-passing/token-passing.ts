@@ -87,6 +87,7 @@ export class TokenPassing implements Policy {
   private heldBackTicks = 0;
   private heldBackSince = 0;
   private readonly requestQueue: Int32Array;
+  private readonly swapCandidates = new Int32Array(maxSwapCandidates);
   /** Consecutive failed plans per robot, and the tick of its next try. */
   private readonly failures: Int32Array;
   private readonly retryAt: Float64Array;
@@ -333,7 +334,10 @@ export class TokenPassing implements Policy {
     const table = this.table;
     const cell = world.robotCell[robot];
     const toRobot = distances.to(cell);
-    const candidates: number[] = [];
+    // The nearest few candidates (by their pickup, ties to the lower robot index), kept sorted.
+    const candidates = this.swapCandidates;
+    let count = 0;
+    const endRobot = table.endRobot;
     for (let other = 0; other < world.robotCount; other++) {
       if (other === robot || world.robotPhase[other] !== phaseToPickup) continue;
       const task = world.robotTask[other];
@@ -341,15 +345,21 @@ export class TokenPassing implements Policy {
       const d = toRobot[pickup];
       // Only worth asking if this robot could be there before the other, and no farther than the best open task.
       if (d >= this.pickupTick[other] - tick || d >= openDistance) continue;
-      const endpointsFree = [pickup, world.taskDrop[task], world.taskReturn[task]].every(
-        (c) => c < 0 || table.endRobot[c] < 0 || table.endRobot[c] === robot || table.endRobot[c] === other,
-      );
-      if (endpointsFree) candidates.push(other);
+      if (count === maxSwapCandidates && d >= toRobot[world.taskPickup[world.robotTask[candidates[count - 1]]]]) continue;
+      const drop = world.taskDrop[task];
+      const back = world.taskReturn[task];
+      if (restsOther(endRobot, pickup, robot, other) || restsOther(endRobot, drop, robot, other) || (back >= 0 && restsOther(endRobot, back, robot, other))) continue;
+      let j = count < maxSwapCandidates ? count++ : maxSwapCandidates - 1;
+      while (j > 0 && toRobot[world.taskPickup[world.robotTask[candidates[j - 1]]]] > d) {
+        candidates[j] = candidates[j - 1];
+        j--;
+      }
+      candidates[j] = other;
     }
-    candidates.sort((a, b) => toRobot[world.taskPickup[world.robotTask[a]]] - toRobot[world.taskPickup[world.robotTask[b]]] || a - b);
     // Performance shortcut: only the nearest few candidates are tried, and each first by its
     // pickup leg alone; the whole task is planned only when that leg arrives earlier.
-    for (const other of candidates.slice(0, maxSwapCandidates)) {
+    for (let k = 0; k < count; k++) {
+      const other = candidates[k];
       const task = world.robotTask[other];
       const oldPath = table.paths[other]!;
       const oldStart = table.pathStart[other];
@@ -436,3 +446,8 @@ export class TokenPassing implements Policy {
   }
 }
 
+/** True when a robot other than `a` and `b` has its path end on `cell`. */
+function restsOther(endRobot: Int32Array, cell: number, a: number, b: number): boolean {
+  const rester = endRobot[cell];
+  return rester >= 0 && rester !== a && rester !== b;
+}
