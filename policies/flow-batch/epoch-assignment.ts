@@ -78,7 +78,11 @@ export class EpochAssigner {
   private readonly committedStamp: Int32Array;
   private stamp = 0;
 
-  constructor(robotCount: number, cellCount: number) {
+  /** Cells a task can be picked up from (pickup and storage points): when every one has a full queue, no later task can be a candidate. */
+  private readonly pickupCells: number;
+
+  constructor(robotCount: number, cellCount: number, pickupCells: number) {
+    this.pickupCells = pickupCells;
     this.isFree = new Uint8Array(robotCount);
     this.committed = new Int32Array(cellCount);
     this.committedStamp = new Int32Array(cellCount);
@@ -96,6 +100,7 @@ export class EpochAssigner {
     const committed = this.committed;
     const committedStamp = this.committedStamp;
     const stamp = ++this.stamp;
+    let fullQueues = 0;
     if (pickupQueueLimit > 0) {
       for (let r = 0; r < world.robotCount; r++) {
         if (world.robotPhase[r] !== phaseToPickup) continue;
@@ -104,7 +109,7 @@ export class EpochAssigner {
           committedStamp[pickup] = stamp;
           committed[pickup] = 0;
         }
-        committed[pickup]++;
+        if (++committed[pickup] === pickupQueueLimit) fullQueues++;
       }
     }
 
@@ -113,6 +118,8 @@ export class EpochAssigner {
     const endpoints = [0, 0, 0];
     for (const task of world.openTasks) {
       if (candidates.length >= maxTasks) break;
+      // Performance shortcut: with every pickup's queue full, the rest of the list cannot qualify.
+      if (pickupQueueLimit > 0 && fullQueues >= this.pickupCells) break;
       const count = taskEndpoints(world, task, endpoints);
       let usable = true;
       for (let e = 0; e < count && usable; e++) {
@@ -128,7 +135,7 @@ export class EpochAssigner {
           committed[pickup] = 0;
         }
         if (committed[pickup] >= pickupQueueLimit) continue;
-        committed[pickup]++;
+        if (++committed[pickup] === pickupQueueLimit) fullQueues++;
       }
       candidates.push(task);
     }

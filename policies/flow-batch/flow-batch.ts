@@ -144,7 +144,7 @@ export class FlowBatch implements Policy {
     const { world, layout } = context;
     this.table = new ReservationTable(layout.cellCount, world.robotCount);
     this.planner = { world, table: this.table, search: new SpaceTimeAStar(layout, this.table, options.maxExpansions), distances: context.distances };
-    this.assigner = new EpochAssigner(world.robotCount, layout.cellCount);
+    this.assigner = new EpochAssigner(world.robotCount, layout.cellCount, layout.pickups.length + layout.storage.length);
     this.epochTicks = Math.max(1, Math.round(options.epochSeconds / context.tickSeconds));
     this.pathEnd = new Int32Array(world.robotCount);
     this.wasBusy = new Uint8Array(world.robotCount);
