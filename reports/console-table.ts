@@ -143,7 +143,7 @@ export function renderRunTable(summary: RunSummary): string {
   if (held) {
     const half = held.halfWidth === null ? '' : ` ± ${Math.round(held.halfWidth).toLocaleString('en-US')}`;
     lines.push(
-      `held back by the endpoint rule: ${Math.round(held.mean).toLocaleString('en-US')}${half} task-s/h (on average ${(held.mean / 3600).toFixed(1)} open tasks that no robot may take because their pickup or drop ends another robot's path; whole run)`,
+      `held back by the policy's rules: ${Math.round(held.mean).toLocaleString('en-US')}${half} task-s/h (on average ${(held.mean / 3600).toFixed(1)} open tasks no robot may take ${heldBackRule(summary.policy)}; whole run)`,
     );
   }
   const busiest = [
@@ -185,4 +185,11 @@ export function renderRunTable(summary: RunSummary): string {
   lines.push('');
   lines.push(`Note: ${safetyNote}`);
   return lines.join('\n');
+}
+
+/** Why a policy's held-back tasks could not be taken (README, "held back by the policy's rules"). */
+function heldBackRule(policy: string): string {
+  if (policy.startsWith('token-passing')) return "because their pickup or drop ends another robot's path";
+  if (policy === 'flow-batch') return "because their pickup's queue is full (pickupQueueLimit)";
+  return 'under its rules';
 }

@@ -121,9 +121,10 @@ export interface RunSummary {
   wellFormedWithRestCells: boolean;
   /**
    * What holds the policy back, from its own counters; null when it reports none.
-   * heldBackTaskSecondsPerHour: token passing's open tasks that no robot may take because
-   * their pickup or drop ends another robot's path, in task-seconds per simulated hour over
-   * the whole run (divide by 3600 for the mean number of such tasks).
+   * heldBackTaskSecondsPerHour: open tasks that no robot may take under the policy's rules
+   * (token passing: their pickup or drop ends another robot's path; flow-batch: their
+   * pickup already has pickupQueueLimit robots bound for it), in task-seconds per simulated
+   * hour over the whole run (divide by 3600 for the mean number of such tasks).
    */
   policyLimits: { heldBackTaskSecondsPerHour: Interval } | null;
   agentSteps: number;

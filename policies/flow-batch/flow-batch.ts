@@ -83,6 +83,7 @@ import { EpochAssigner, taskEndpoints } from './epoch-assignment.ts';
 
 // Read once: imported bindings are getters under the TypeScript loader, and these are read per robot per step.
 const phaseIdle = Phase.Idle;
+const phaseToPickup = Phase.ToPickup;
 
 export const flowBatchOptions = z
   .object({
@@ -136,6 +137,19 @@ export class FlowBatch implements Policy {
   private readonly restSpots: Int32Array;
   private readonly isRestSpot: Uint8Array;
   private readonly spotBuffer = new Int32Array(3);
+  /**
+   * Open tasks no robot may take under the policy's rules (their pickup's queue is full;
+   * with restAt 'drop' also an endpoint where a robot's path ends), counted after every step
+   * (only steps change it) and integrated over time as task-ticks.
+   */
+  private heldBack = 0;
+  private heldBackTicks = 0;
+  private heldBackSince = 0;
+  /** Pickup and storage cells, and per cell the open tasks picked up there and the robots bound for it. */
+  private readonly pickupCells: Int32Array;
+  private readonly openAtPickup: Int32Array;
+  private readonly boundForPickup: Int32Array;
+  private openCountedVersion = -1;
 
   constructor(
     private readonly context: PolicyContext,
@@ -156,6 +170,11 @@ export class FlowBatch implements Policy {
     this.restSpots = restSpotsForFleet(layout, world.robotCount);
     this.isRestSpot = new Uint8Array(layout.cellCount);
     for (const c of this.restSpots) this.isRestSpot[c] = 1;
+    this.pickupCells = new Int32Array(layout.pickups.length + layout.storage.length);
+    this.pickupCells.set(layout.pickups);
+    this.pickupCells.set(layout.storage, layout.pickups.length);
+    this.openAtPickup = new Int32Array(layout.cellCount);
+    this.boundForPickup = new Int32Array(layout.cellCount);
     for (let r = 0; r < world.robotCount; r++) this.table.rest(r, world.robotCell[r], 0);
   }
 
@@ -168,6 +187,7 @@ export class FlowBatch implements Policy {
   step(tick: number, moves: Int32Array): number {
     const { world } = this.context;
     const robots = world.robotCount;
+    this.accountHeldBack(tick);
     let justFreed = false;
     for (let r = 0; r < robots; r++) {
       const busy = world.robotTask[r] >= 0 ? 1 : 0;
@@ -193,6 +213,7 @@ export class FlowBatch implements Policy {
         following = true;
       }
     }
+    this.countHeldBack();
     if (following) return tick + 1;
     // Nothing moves: wake at the next epoch while work and robots wait for each other.
     if ((idle && world.openTasks.length > 0) || parkingPending) return this.nextEpoch;
@@ -317,8 +338,54 @@ export class FlowBatch implements Policy {
     return false;
   }
 
+  /** Adds the task-ticks held back since the last step. */
+  private accountHeldBack(tick: number): void {
+    if (tick > this.heldBackSince) {
+      this.heldBackTicks += this.heldBack * (tick - this.heldBackSince);
+      this.heldBackSince = tick;
+    }
+  }
+
+  /** Open tasks held back by the policy's rules right now (see heldBack). */
+  private countHeldBack(): void {
+    const world = this.context.world;
+    const limit = this.options.pickupQueueLimit;
+    const open = world.openTasks;
+    if (open.length === 0 || (limit === 0 && this.options.restAt === 'parking')) {
+      this.heldBack = 0;
+      return;
+    }
+    const bound = this.boundForPickup;
+    for (const c of this.pickupCells) bound[c] = 0;
+    for (let r = 0; r < world.robotCount; r++) if (world.robotPhase[r] === phaseToPickup) bound[world.taskPickup[world.robotTask[r]]]++;
+    let held = 0;
+    if (this.options.restAt === 'drop') {
+      // Paths end on drops: a task is also held while a robot rests on one of its endpoints.
+      const endRobot = this.table.endRobot;
+      for (let i = 0; i < open.length; i++) {
+        const task = open[i];
+        const pickup = world.taskPickup[task];
+        const back = world.taskReturn[task];
+        if ((limit > 0 && bound[pickup] >= limit) || endRobot[pickup] >= 0 || endRobot[world.taskDrop[task]] >= 0 || (back >= 0 && endRobot[back] >= 0)) held++;
+      }
+    } else {
+      // Only full queues hold tasks back: count the open tasks per pickup when the open list changed.
+      const openAt = this.openAtPickup;
+      if (this.openCountedVersion !== world.version) {
+        this.openCountedVersion = world.version;
+        for (const c of this.pickupCells) openAt[c] = 0;
+        for (let i = 0; i < open.length; i++) openAt[world.taskPickup[open[i]]]++;
+      }
+      for (const c of this.pickupCells) if (bound[c] >= limit) held += openAt[c];
+    }
+    this.heldBack = held;
+  }
+
   counters(): Record<string, number> {
+    // Up to the end of the run: nothing changes the count after the last step.
+    this.accountHeldBack(this.context.world.currentTick);
     return {
+      heldBackTaskSeconds: this.heldBackTicks * this.context.tickSeconds,
       restCells: this.restSpots.length - this.context.layout.parking.length,
       epochs: this.epochs,
       rounds: this.rounds,
