@@ -12,11 +12,22 @@
  *    one if it reaches the pickup earlier than that robot would; the displaced robot then
  *    takes the token in turn;
  *  - with no task it can take, a robot standing on a task endpoint moves to the nearest
- *    parking spot (a non-task endpoint) that is not the end of another path; otherwise it
+ *    rest spot (a non-task endpoint) that is not the end of another path; otherwise it
  *    stays where it is.
- * On well-formed layouts (checkWellFormed) every task is completed and no two robots
+ * Rest spots are the marked parking spots and, for robots beyond their number, rest cells
+ * (sim/rest-cells.ts) that keep the floor well-formed. On well-formed floors
+ * (checkWellFormed, counting the rest cells) every task is completed and no two robots
  * collide. Deviation from the paper, for floors that are not well-formed: a robot that
- * starts on plain floor goes to free parking when it has nothing to do, to clear the aisles.
+ * stands on plain floor goes to a free rest spot when it has nothing to do, to clear the
+ * aisles.
+ *
+ * Token requests are made cheap without changing any choice: what a robot may take depends
+ * only on the open list and on where paths end, so one list of eligible tasks (the first
+ * per pickup cell) serves every request until one of the two changes, and a robot that
+ * found nothing asks again only then (a rest revision, not every reservation change).
+ * The same list counts the open tasks held back by the endpoint rule (`heldBackTaskSeconds`),
+ * which is what caps token passing on floors with few drops: at most one robot per drop is
+ * on its way.
  */
 import { z } from 'zod';
 import { CellKind } from '../../sim/layout.ts';
