@@ -9,7 +9,7 @@
  */
 import { unreachable, type DistanceTables } from '../../sim/distance-table.ts';
 import type { ReservationTable } from '../../sim/reservation-table.ts';
-import type { SpaceTimeAStar } from '../../sim/space-time-astar.ts';
+import type { SearchRequest, SpaceTimeAStar } from '../../sim/space-time-astar.ts';
 import type { World } from '../../sim/world.ts';
 
 export interface TaskPlan {
@@ -124,15 +124,7 @@ function planStops(planner: Planner, robot: number, from: number, tick: number, 
   for (let i = 0; i < stopCount; i++) {
     const goal = stopCells[i];
     const hold = stopHolds[i];
-    const leg = search.search({
-      robot,
-      start: cell,
-      startTick: t,
-      goal,
-      heuristic: distances.to(goal),
-      holdTicks: hold,
-      restForever: i === stopCount - 1 && restAtEnd,
-    });
+    const leg = search.search(requestFor(robot, cell, t, goal, distances.to(goal), hold, i === stopCount - 1 && restAtEnd));
     if (!leg) return -1;
     legs[i] = leg;
     t += leg.length - 1;
@@ -146,15 +138,21 @@ function planStops(planner: Planner, robot: number, from: number, tick: number, 
 /** Plans a move to `goal` ending in a rest there (parking). */
 export function planRest(planner: Planner, robot: number, from: number, tick: number, goal: number): Int32Array | null {
   planner.table.ensureHorizon(3 * planner.distances.distance(from, goal) + 64);
-  return planner.search.search({
-    robot,
-    start: from,
-    startTick: tick,
-    goal,
-    heuristic: planner.distances.to(goal),
-    holdTicks: 0,
-    restForever: true,
-  });
+  return planner.search.search(requestFor(robot, from, tick, goal, planner.distances.to(goal), 0, true));
+}
+
+/** One search request object, refilled for every search (the search reads it during the call only). */
+const request: SearchRequest = { robot: 0, start: 0, startTick: 0, goal: 0, heuristic: new Int32Array(0), holdTicks: 0, restForever: false };
+
+export function requestFor(robot: number, start: number, startTick: number, goal: number, heuristic: Int32Array, holdTicks: number, restForever: boolean): SearchRequest {
+  request.robot = robot;
+  request.start = start;
+  request.startTick = startTick;
+  request.goal = goal;
+  request.heuristic = heuristic;
+  request.holdTicks = holdTicks;
+  request.restForever = restForever;
+  return request;
 }
 
 /**

@@ -36,7 +36,7 @@ import { ReservationTable } from '../../sim/reservation-table.ts';
 import { restSpotsForFleet } from '../../sim/rest-cells.ts';
 import { SpaceTimeAStar } from '../../sim/space-time-astar.ts';
 import { Phase } from '../../sim/world.ts';
-import { freeParkingSpots, planRest, planTask, type Planner } from '../shared/task-path.ts';
+import { freeParkingSpots, planRest, planTask, requestFor, type Planner } from '../shared/task-path.ts';
 
 // Read once: imported bindings are getters under the TypeScript loader, and these are read per robot per step.
 const phaseIdle = Phase.Idle;
@@ -387,15 +387,7 @@ export class TokenPassing implements Policy {
       table.rest(other, otherCell, tick);
       table.release(robot, tick);
       const pickup = world.taskPickup[task];
-      const leg = this.planner.search.search({
-        robot,
-        start: cell,
-        startTick: tick,
-        goal: pickup,
-        heuristic: distances.to(pickup),
-        holdTicks: world.taskPickupTicks[task],
-        restForever: false,
-      });
+      const leg = this.planner.search.search(requestFor(robot, cell, tick, pickup, distances.to(pickup), world.taskPickupTicks[task], false));
       const earlier = leg !== null && tick + leg.length - 1 < this.pickupTick[other];
       const plan = earlier ? planTask(this.planner, robot, cell, tick, task) : null;
       if (plan && plan.pickupTick < this.pickupTick[other]) {
