@@ -77,6 +77,8 @@ export class EpochAssigner {
   private readonly committed: Int32Array;
   private readonly committedStamp: Int32Array;
   private stamp = 0;
+  /** Cost matrix storage, reused across epochs. */
+  private cost = new Float64Array(256);
 
   /** Cells a task can be picked up from (pickup and storage points): when every one has a full queue, no later task can be a candidate. */
   private readonly pickupCells: number;
@@ -89,12 +91,22 @@ export class EpochAssigner {
   }
 
   assign(request: EpochAssignmentRequest): EpochAssignment {
+    const { world, freeRobots } = request;
+    if (freeRobots.length === 0 || world.openTasks.length === 0) return { pairs: [], candidates: 0 };
+    const isFree = this.isFree;
+    for (const r of freeRobots) isFree[r] = 1;
+    try {
+      return this.assignMarked(request);
+    } finally {
+      for (const r of freeRobots) isFree[r] = 0;
+    }
+  }
+
+  /** assign() with `isFree` marking the free robots. */
+  private assignMarked(request: EpochAssignmentRequest): EpochAssignment {
     const { world, distances, endRobot, freeRobots, tick, tickSeconds, ageWeight, maxTasks, pickupQueueLimit } = request;
     const rows = freeRobots.length;
-    if (rows === 0 || world.openTasks.length === 0) return { pairs: [], candidates: 0 };
     const isFree = this.isFree;
-    isFree.fill(0);
-    for (const r of freeRobots) isFree[r] = 1;
 
     // Pickup queues: robots already bound for each pickup.
     const committed = this.committed;
@@ -142,7 +154,8 @@ export class EpochAssigner {
     const cols = candidates.length;
     if (cols === 0) return { pairs: [], candidates: 0 };
 
-    const cost = new Float64Array(rows * cols);
+    if (this.cost.length < rows * cols) this.cost = new Float64Array(Math.max(rows * cols, 2 * this.cost.length));
+    const cost = this.cost.subarray(0, rows * cols);
     for (let j = 0; j < cols; j++) {
       const task = candidates[j];
       const toPickup = distances.to(world.taskPickup[task]);
@@ -163,8 +176,20 @@ export class EpochAssigner {
       }
     }
 
-    const { rowToCol } = solveAssignment(cost, rows, cols);
     const pairs: EpochPair[] = [];
+    if (rows === 1 || cols === 1) {
+      // One robot or one task: the optimum is the cheapest pair, the first in index order
+      // among equal costs, which is also what the solver returns (it breaks ties the same way).
+      let best = 0;
+      for (let k = 1; k < rows * cols; k++) if (cost[k] < cost[best]) best = k;
+      if (cost[best] < FORBIDDEN_COST / 2) {
+        const i = cols === 1 ? best : 0;
+        const j = cols === 1 ? 0 : best;
+        pairs.push({ robot: freeRobots[i], task: candidates[j], cost: cost[best] });
+      }
+      return { pairs, candidates: cols };
+    }
+    const { rowToCol } = solveAssignment(cost, rows, cols);
     for (let i = 0; i < rows; i++) {
       const j = rowToCol[i];
       if (j < 0) continue;
