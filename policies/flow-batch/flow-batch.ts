@@ -300,7 +300,8 @@ export class FlowBatch implements Policy {
   private remainingPath(robot: number, tick: number): Int32Array {
     const path = this.table.paths[robot]!;
     const offset = tick - this.table.pathStart[robot];
-    return offset < path.length ? path.slice(offset) : Int32Array.of(path[path.length - 1]);
+    // A view, not a copy: reserved paths are never written to again.
+    return offset < path.length ? path.subarray(offset) : path.subarray(path.length - 1);
   }
 
   /**
