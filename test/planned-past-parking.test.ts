@@ -26,7 +26,7 @@ function deepBacklog(policy: string, robots: number, hours: number): Scenario {
 
 describe('planned policies at 100 robots on the demo hall (38 parking spots), deep backlog', () => {
   for (const policy of planned) {
-    it(`${policy}: 0 collisions, deliveries in every 10 minutes, at least as many per hour as 32 robots`, () => {
+    it(`${policy}: 0 collisions, 0 deadlocks, deliveries in every 10 minutes, at least as many per hour as 32 robots`, () => {
       const layout = parseLayout(loadScenarioFile(demoPath).layoutText);
       expect(checkWellFormed(layout, 100).wellFormed).toBe(false);
       expect(checkWellFormed(withRestCells(layout, restCellsForFleet(layout, 100)), 100).wellFormed).toBe(true);
@@ -34,6 +34,9 @@ describe('planned policies at 100 robots on the demo hall (38 parking spots), de
       expect(big.collisions).toBe(0);
       expect(big.illegalSteps).toBe(0);
       expect(big.policyCounters.restCells).toBe(62);
+      // Well-formed with its rest cells: no deadlock, livelock or gridlock (closed wait-for
+      // sets, sim/deadlock-detector.ts), although the backlog keeps every robot in demand.
+      expect(big.metrics.episodes).toHaveLength(0);
       // Tasks stay open throughout (the backlog only grows), so every window must deliver:
       // no stall towards zero. Ten windows of 6 sample minutes.
       const perMinute = Array.from(big.metrics.deliveries);
@@ -75,6 +78,7 @@ describe('completeness with rest cells (Ma et al. 2017: finite tasks, well-forme
       const [record] = runReplications(scenario);
       expect(record.collisions, policy).toBe(0);
       expect(record.delivered, policy).toBe(400);
+      expect(record.metrics.episodes, policy).toHaveLength(0);
     }
   });
 
@@ -123,6 +127,7 @@ describe('completeness with rest cells (Ma et al. 2017: finite tasks, well-forme
           const [record] = runReplications(scenario);
           expect(record.collisions).toBe(0);
           expect(record.illegalSteps).toBe(0);
+          expect(record.metrics.episodes).toHaveLength(0);
           if (record.delivered !== tasks.length) throw new Error(`${record.delivered} of ${tasks.length} delivered with ${robots} robots on\n${text}`);
         }),
         { numRuns: Number(process.env.PROPERTY_RUNS ?? 25), seed: Number(process.env.PROPERTY_SEED ?? 20261201) },
