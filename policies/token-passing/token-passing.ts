@@ -36,6 +36,7 @@ import { ReservationTable } from '../../sim/reservation-table.ts';
 import { restSpotsForFleet } from '../../sim/rest-cells.ts';
 import { SpaceTimeAStar } from '../../sim/space-time-astar.ts';
 import { Phase } from '../../sim/world.ts';
+import { OpenTasksByRoute } from './open-tasks-by-route.ts';
 import { freeParkingSpots, planRest, planTask, requestFor, type Planner } from '../shared/task-path.ts';
 
 // Read once: imported bindings are getters under the TypeScript loader, and these are read per robot per step.
@@ -93,6 +94,10 @@ export class TokenPassing implements Policy {
   private candidatesRevision = -1;
   private readonly pickupMark: Int32Array;
   private pickupMarkId = 0;
+  /** Where each pickup's candidate sits in `candidates` during a rebuild. */
+  private readonly candidateAt: Int32Array;
+  /** The open tasks by route, so a rebuild looks at one task per route (delivery floors). */
+  private readonly routes: OpenTasksByRoute;
   /** Open tasks held back at the last rebuild (an endpoint ends a robot's path), and their task-ticks since the start. */
   private heldBack = 0;
   private heldBackTicks = 0;
@@ -135,6 +140,8 @@ export class TokenPassing implements Policy {
       if (kind === CellKind.Pickup || kind === CellKind.Drop || kind === CellKind.Storage) this.isTaskEndpoint[c] = 1;
     }
     this.pickupMark = new Int32Array(layout.cellCount);
+    this.candidateAt = new Int32Array(layout.cellCount);
+    this.routes = new OpenTasksByRoute(layout.cellCount);
     // Every robot asks at most once per step, plus once more when displaced by a swap.
     this.requestQueue = new Int32Array(2 * world.robotCount);
     this.endCell = new Int32Array(world.robotCount);
@@ -205,28 +212,70 @@ export class TokenPassing implements Policy {
     const endRobot = this.table.endRobot;
     const mark = this.pickupMark;
     const id = ++this.pickupMarkId;
-    const open = world.openTasks;
     let count = 0;
     let held = 0;
-    for (let i = 0; i < open.length; i++) {
-      const task = open[i];
-      const pickup = world.taskPickup[task];
-      const back = world.taskReturn[task];
-      if (endRobot[pickup] >= 0 || endRobot[world.taskDrop[task]] >= 0 || (back >= 0 && endRobot[back] >= 0)) {
-        held++;
-        continue;
+    if (this.routes.sync(world)) {
+      // One look per route: its earliest task stands for all of them.
+      const routes = this.routes;
+      const serial = world.taskSerial;
+      for (let r = 0; r < routes.routeCount; r++) {
+        const tasks = routes.count(r);
+        if (tasks === 0) continue;
+        const pickup = routes.pickup[r];
+        if (endRobot[pickup] >= 0 || endRobot[routes.drop[r]] >= 0) {
+          held += tasks;
+          continue;
+        }
+        const task = routes.first(r);
+        if (mark[pickup] === id) {
+          // Keep the earlier of two routes from one pickup.
+          const at = this.candidateAt[pickup];
+          if (serial[task] < serial[this.candidates[at]]) this.candidates[at] = task;
+          continue;
+        }
+        mark[pickup] = id;
+        this.candidateAt[pickup] = count;
+        count = this.addCandidate(count, task);
       }
-      if (mark[pickup] === id) continue;
-      mark[pickup] = id;
-      if (count === this.candidates.length) {
-        const grown = new Int32Array(2 * count);
-        grown.set(this.candidates);
-        this.candidates = grown;
+      // Release order, as a scan of the open list would meet them (ties go to the earlier);
+      // one candidate per pickup, so a few entries: insertion sort.
+      const candidates = this.candidates;
+      for (let i = 1; i < count; i++) {
+        const task = candidates[i];
+        let j = i;
+        while (j > 0 && serial[candidates[j - 1]] > serial[task]) {
+          candidates[j] = candidates[j - 1];
+          j--;
+        }
+        candidates[j] = task;
       }
-      this.candidates[count++] = task;
+    } else {
+      const open = world.openTasks;
+      for (let i = 0; i < open.length; i++) {
+        const task = open[i];
+        const pickup = world.taskPickup[task];
+        const back = world.taskReturn[task];
+        if (endRobot[pickup] >= 0 || endRobot[world.taskDrop[task]] >= 0 || (back >= 0 && endRobot[back] >= 0)) {
+          held++;
+          continue;
+        }
+        if (mark[pickup] === id) continue;
+        mark[pickup] = id;
+        count = this.addCandidate(count, task);
+      }
     }
     this.candidateCount = count;
     this.heldBack = held;
+  }
+
+  private addCandidate(count: number, task: number): number {
+    if (count === this.candidates.length) {
+      const grown = new Int32Array(2 * count);
+      grown.set(this.candidates);
+      this.candidates = grown;
+    }
+    this.candidates[count] = task;
+    return count + 1;
   }
 
   /**
@@ -237,26 +286,39 @@ export class TokenPassing implements Policy {
     const world = this.context.world;
     let best = -1;
     let bestDistance = Infinity;
+    this.refreshCandidates();
     if (this.isTaskEndpoint[cell] && this.table.endRobot[cell] === robot) {
       // The robot rests on a task endpoint (a drop, or a shelf's storage point): tasks ending
-      // there are open to it alone, so the shared list does not apply; scan every open task.
+      // there are open to it alone, so the shared list does not apply.
       const endRobot = this.table.endRobot;
-      const open = world.openTasks;
-      for (let i = 0; i < open.length; i++) {
-        const task = open[i];
-        const pickup = world.taskPickup[task];
-        const d = toRobot[pickup];
-        if (d >= bestDistance) continue;
-        const drop = world.taskDrop[task];
-        const back = world.taskReturn[task];
-        if (endRobot[pickup] >= 0 && endRobot[pickup] !== robot) continue;
-        if (endRobot[drop] >= 0 && endRobot[drop] !== robot) continue;
-        if (back >= 0 && endRobot[back] >= 0 && endRobot[back] !== robot) continue;
-        best = task;
-        bestDistance = d;
+      if (this.routes.sync(world)) {
+        const routes = this.routes;
+        const serial = world.taskSerial;
+        for (let r = 0; r < routes.routeCount; r++) {
+          if (routes.count(r) === 0) continue;
+          const pickup = routes.pickup[r];
+          const d = toRobot[pickup];
+          if (d > bestDistance) continue;
+          if (restsOther(endRobot, pickup, robot, robot) || restsOther(endRobot, routes.drop[r], robot, robot)) continue;
+          const task = routes.first(r);
+          if (d === bestDistance && serial[task] > serial[best]) continue;
+          best = task;
+          bestDistance = d;
+        }
+      } else {
+        const open = world.openTasks;
+        for (let i = 0; i < open.length; i++) {
+          const task = open[i];
+          const pickup = world.taskPickup[task];
+          const d = toRobot[pickup];
+          if (d >= bestDistance) continue;
+          const back = world.taskReturn[task];
+          if (restsOther(endRobot, pickup, robot, robot) || restsOther(endRobot, world.taskDrop[task], robot, robot) || (back >= 0 && restsOther(endRobot, back, robot, robot))) continue;
+          best = task;
+          bestDistance = d;
+        }
       }
     } else {
-      this.refreshCandidates();
       const candidates = this.candidates;
       for (let i = 0; i < this.candidateCount; i++) {
         const task = candidates[i];
@@ -296,6 +358,7 @@ export class TokenPassing implements Policy {
       const plan = planTask(this.planner, robot, cell, tick, best);
       if (plan) {
         this.commit(robot, plan.path, tick, plan.pickupTick);
+        this.routes.remove(world, best);
         world.assign(robot, best);
         return -1;
       }
