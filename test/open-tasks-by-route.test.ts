@@ -1,0 +1,73 @@
+/**
+ * OpenTasksByRoute (policies/token-passing/open-tasks-by-route.ts): after any sequence of
+ * releases and assignments, each route's count and earliest task equal what a scan of the
+ * world's open list gives (the list token passing used to scan on every request).
+ */
+import { describe, expect, it } from 'vitest';
+import fc from 'fast-check';
+import { parseLayout } from '../sim/layout.ts';
+import { Phase, TaskState, World } from '../sim/world.ts';
+import { OpenTasksByRoute } from '../policies/token-passing/open-tasks-by-route.ts';
+
+const layout = parseLayout(['########', '#P.D..H#', '#P..D.H#', '#P...DH#', '########'].join('\n'));
+
+describe('OpenTasksByRoute', () => {
+  it('matches a scan of the open list after random releases and assignments (fast-check)', () => {
+    const op = fc.oneof(
+      fc.record({ kind: fc.constant('release' as const), pickup: fc.nat(2), drop: fc.nat(2) }),
+      fc.record({ kind: fc.constant('assign' as const), which: fc.nat(1000) }),
+      fc.record({ kind: fc.constant('check' as const) }),
+    );
+    fc.assert(
+      fc.property(fc.array(op, { maxLength: 200 }), (ops) => {
+        const world = new World(layout, 1);
+        const index = new OpenTasksByRoute(layout.cellCount);
+        let tick = 0;
+        const check = () => {
+          expect(index.sync(world)).toBe(true);
+          const seen = new Set<string>();
+          for (let r = 0; r < index.routeCount; r++) {
+            const key = `${index.pickup[r]}-${index.drop[r]}`;
+            expect(seen.has(key)).toBe(false);
+            seen.add(key);
+            const onRoute = world.openTasks.filter((t) => world.taskPickup[t] === index.pickup[r] && world.taskDrop[t] === index.drop[r]);
+            expect(index.count(r)).toBe(onRoute.length);
+            if (onRoute.length > 0) {
+              const earliest = onRoute.reduce((a, b) => (world.taskSerial[b] < world.taskSerial[a] ? b : a));
+              expect(index.first(r)).toBe(earliest);
+            }
+          }
+          // Every open route is indexed.
+          for (const t of world.openTasks) expect(seen.has(`${world.taskPickup[t]}-${world.taskDrop[t]}`)).toBe(true);
+        };
+        for (const o of ops) {
+          if (o.kind === 'release') {
+            world.addTask(tick++, layout.pickups[o.pickup], layout.drops[o.drop], -1, 1, 1, 0, TaskState.Open);
+          } else if (o.kind === 'assign') {
+            if (world.openTasks.length === 0) continue;
+            index.sync(world);
+            const task = world.openTasks[o.which % world.openTasks.length];
+            index.remove(world, task);
+            world.assign(0, task);
+            // Hand the robot back at once (the test is about the open list only).
+            world.robotTask[0] = -1;
+            world.robotPhase[0] = Phase.Idle;
+          } else {
+            check();
+          }
+        }
+        check();
+      }),
+      { numRuns: 300, seed: 20261201 },
+    );
+  });
+
+  it('declines to index round trips (tasks with a return cell)', () => {
+    const world = new World(layout, 1);
+    const index = new OpenTasksByRoute(layout.cellCount);
+    world.addTask(0, layout.pickups[0], layout.drops[0], -1, 1, 1, 0, TaskState.Open);
+    expect(index.sync(world)).toBe(true);
+    world.addTask(1, layout.pickups[1], layout.drops[1], layout.pickups[1], 1, 1, 1, TaskState.Open);
+    expect(index.sync(world)).toBe(false);
+  });
+});
