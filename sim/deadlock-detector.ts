@@ -55,6 +55,10 @@ import type { Layout } from './layout.ts';
 import type { DeadlockEpisode, EpisodeKind } from './metrics.ts';
 import { Phase, isHandling, type World } from './world.ts';
 
+// Read once: imported bindings are getters under the TypeScript loader, and these are read per robot per step.
+const phaseIdle = Phase.Idle;
+const handlingPhase = isHandling;
+
 /** What each robot did over the evaluated step. */
 export const WaitStatus = {
   Handling: 0,
@@ -201,7 +205,7 @@ export class DeadlockDetector {
     const nextStamp = this.nextStamp;
     const nextOccupant = this.nextOccupant;
     for (let r = 0; r < robots; r++) {
-      const c = isHandling(phases[r]) ? cells[r] : next[r];
+      const c = handlingPhase(phases[r]) ? cells[r] : next[r];
       nextStamp[c] = stamp;
       nextOccupant[c] = r;
     }
@@ -243,8 +247,8 @@ export class DeadlockDetector {
       }
 
       this.waitCount[r] = 0;
-      if (phase === Phase.Idle) idle++;
-      if (isHandling(phase)) {
+      if (phase === phaseIdle) idle++;
+      if (handlingPhase(phase)) {
         status[r] = WaitStatus.Handling;
         continue;
       }
@@ -253,7 +257,7 @@ export class DeadlockDetector {
         status[r] = WaitStatus.Moving;
         continue;
       }
-      if (phase === Phase.Idle) {
+      if (phase === phaseIdle) {
         status[r] = WaitStatus.IdleStill;
         continue;
       }
@@ -482,7 +486,7 @@ export class DeadlockDetector {
   private membersLeave(tick: number, world: World): void {
     for (let r = 0; r < this.robots; r++) {
       if (this.episodeOf[r] < 0 || this.memberSince[r] >= 0) continue;
-      if (this.status[r] !== WaitStatus.IdleStill || world.robotPhase[r] !== Phase.Idle) this.leave(r, tick, false);
+      if (this.status[r] !== WaitStatus.IdleStill || world.robotPhase[r] !== phaseIdle) this.leave(r, tick, false);
     }
   }
 
@@ -507,7 +511,7 @@ export class DeadlockDetector {
           const y = this.waitsOn[x * 4 + k];
           if (this.episodeOf[y] >= 0) continue;
           if (stuck(y)) this.join(id, y, this.stuckSince[y]);
-          else if (this.status[y] === WaitStatus.IdleStill && world.robotPhase[y] === Phase.Idle) this.join(id, y, -1);
+          else if (this.status[y] === WaitStatus.IdleStill && world.robotPhase[y] === phaseIdle) this.join(id, y, -1);
           else continue;
           component[tail++] = y;
         }
@@ -556,7 +560,7 @@ export class DeadlockDetector {
       // A goal that served a robot since (or serves one now) is a busy station, not a livelock.
       const goal = world.goalOf(r);
       const atGoal = world.occupant[goal];
-      if (this.lastServed[goal] >= since || (atGoal >= 0 && isHandling(world.robotPhase[atGoal]))) continue;
+      if (this.lastServed[goal] >= since || (atGoal >= 0 && handlingPhase(world.robotPhase[atGoal]))) continue;
       // Join a neighbouring livelock, else start one.
       let id = -1;
       const cell = world.robotCell[r];
@@ -588,7 +592,7 @@ export class DeadlockDetector {
     const id = this.open('gridlock', tick, this.gridlockSince);
     const episode = this.episodes[id];
     for (let r = 0; r < this.robots; r++) {
-      if (world.robotPhase[r] !== Phase.Idle) continue;
+      if (world.robotPhase[r] !== phaseIdle) continue;
       episode.members.push(r);
       episode.active.add(r);
     }

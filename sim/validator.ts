@@ -8,6 +8,9 @@
  */
 import { isLegalStep, type Layout } from './layout.ts';
 
+// Read once: imported bindings are getters under the TypeScript loader, and this runs per moving robot per tick.
+const legalStep = isLegalStep;
+
 export class CollisionValidator {
   vertexCollisions = 0;
   swapCollisions = 0;
@@ -43,7 +46,7 @@ export class CollisionValidator {
     for (let r = 0; r < cells.length; r++) {
       const to = cells[r];
       const from = previous[r];
-      if (from !== to && !isLegalStep(this.layout, from, to)) {
+      if (from !== to && !legalStep(this.layout, from, to)) {
         this.illegalSteps++;
         this.note(`tick ${tick}: robot ${r} jumped from cell ${from} to ${to}`);
       }

@@ -357,7 +357,8 @@ export class FlowBatch implements Policy {
       return;
     }
     const bound = this.boundForPickup;
-    for (const c of this.pickupCells) bound[c] = 0;
+    const pickupCells = this.pickupCells;
+    for (let i = 0; i < pickupCells.length; i++) bound[pickupCells[i]] = 0;
     for (let r = 0; r < world.robotCount; r++) if (world.robotPhase[r] === phaseToPickup) bound[world.taskPickup[world.robotTask[r]]]++;
     let held = 0;
     if (this.options.restAt === 'drop') {
@@ -374,10 +375,13 @@ export class FlowBatch implements Policy {
       const openAt = this.openAtPickup;
       if (this.openCountedVersion !== world.version) {
         this.openCountedVersion = world.version;
-        for (const c of this.pickupCells) openAt[c] = 0;
+        for (let i = 0; i < pickupCells.length; i++) openAt[pickupCells[i]] = 0;
         for (let i = 0; i < open.length; i++) openAt[world.taskPickup[open[i]]]++;
       }
-      for (const c of this.pickupCells) if (bound[c] >= limit) held += openAt[c];
+      for (let i = 0; i < pickupCells.length; i++) {
+        const c = pickupCells[i];
+        if (bound[c] >= limit) held += openAt[c];
+      }
     }
     this.heldBack = held;
   }
