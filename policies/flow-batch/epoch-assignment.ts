@@ -77,6 +77,7 @@ export class EpochAssigner {
   private readonly committed: Int32Array;
   private readonly committedStamp: Int32Array;
   private stamp = 0;
+  private readonly endpoints = [0, 0, 0];
   /** Cost matrix storage, reused across epochs. */
   private cost = new Float64Array(256);
 
@@ -127,26 +128,24 @@ export class EpochAssigner {
 
     // Candidate tasks, oldest first (the open list is in release order).
     const candidates: number[] = [];
-    const endpoints = [0, 0, 0];
-    for (const task of world.openTasks) {
+    const open = world.openTasks;
+    const limited = pickupQueueLimit > 0;
+    for (let i = 0; i < open.length; i++) {
       if (candidates.length >= maxTasks) break;
       // Performance shortcut: with every pickup's queue full, the rest of the list cannot qualify.
-      if (pickupQueueLimit > 0 && fullQueues >= this.pickupCells) break;
-      const count = taskEndpoints(world, task, endpoints);
-      let usable = true;
-      for (let e = 0; e < count && usable; e++) {
-        const rester = endRobot[endpoints[e]];
-        if (rester >= 0 && !isFree[rester]) usable = false;
-      }
-      if (!usable) continue;
-      if (pickupQueueLimit > 0) {
-        // A full queue takes no more robots this epoch, counting the candidates that may join it.
-        const pickup = world.taskPickup[task];
+      if (limited && fullQueues >= this.pickupCells) break;
+      const task = open[i];
+      const pickup = world.taskPickup[task];
+      // A full queue takes no more robots this epoch, counting the candidates that may join it.
+      if (limited && committedStamp[pickup] === stamp && committed[pickup] >= pickupQueueLimit) continue;
+      if (restsBusy(endRobot, isFree, pickup) || restsBusy(endRobot, isFree, world.taskDrop[task])) continue;
+      const back = world.taskReturn[task];
+      if (back >= 0 && restsBusy(endRobot, isFree, back)) continue;
+      if (limited) {
         if (committedStamp[pickup] !== stamp) {
           committedStamp[pickup] = stamp;
           committed[pickup] = 0;
         }
-        if (committed[pickup] >= pickupQueueLimit) continue;
         if (++committed[pickup] === pickupQueueLimit) fullQueues++;
       }
       candidates.push(task);
@@ -154,6 +153,7 @@ export class EpochAssigner {
     const cols = candidates.length;
     if (cols === 0) return { pairs: [], candidates: 0 };
 
+    const endpoints = this.endpoints;
     if (this.cost.length < rows * cols) this.cost = new Float64Array(Math.max(rows * cols, 2 * this.cost.length));
     const cost = this.cost.subarray(0, rows * cols);
     for (let j = 0; j < cols; j++) {
@@ -210,4 +210,10 @@ export function taskEndpoints(world: World, task: number, out: number[]): number
   if (back < 0) return 2;
   out[2] = back;
   return 3;
+}
+
+/** True when a robot that is not free rests on `cell` (a path ending there must never be crossed). */
+function restsBusy(endRobot: Int32Array, isFree: Uint8Array, cell: number): boolean {
+  const rester = endRobot[cell];
+  return rester >= 0 && !isFree[rester];
 }
