@@ -18,7 +18,7 @@ import { isMap, isScalar, isSeq, LineCounter, parseDocument, type Document } fro
 import { z } from 'zod';
 import { InputError } from '../sim/errors.ts';
 import { CellKind, cellLabel, componentLabels, describeCell, isEndpointKind, LayoutError, parseCellLabel, parseLayout, type Layout } from '../sim/layout.ts';
-import { defaultRun, type DemandMode, type DemandSpec, type HandlingSpec, type PointChoice, type Scenario, type TraceTask } from '../sim/model.ts';
+import { defaultBattery, defaultRun, type BatterySpec, type BreakdownSpec, type DemandMode, type DemandSpec, type HandlingSpec, type PointChoice, type Scenario, type StationHandling, type TraceTask } from '../sim/model.ts';
 
 /** Command-line options that override scenario fields (DESIGN §7). */
 export interface ScenarioOverrides {
@@ -118,6 +118,9 @@ export function parseScenarioText(text: string, sourcePath: string | null, overr
   const run = fields.run ?? {};
   const handling = fields.handling ?? {};
   checkRunSize(demand, run.hours ?? defaultRun.hours, run.sampleSeconds ?? defaultRun.sampleSeconds, layout, context);
+  const stations = normalizeStationHandling(handling, mode, layout, context);
+  const battery = fields.fleet.battery === undefined ? undefined : normalizeBattery(fields.fleet.battery, layout, context);
+  const breakdowns = fields.faults?.breakdowns === undefined ? undefined : normalizeBreakdowns(fields.faults.breakdowns);
   return {
     name: fields.name ?? (sourcePath === null ? 'scenario' : path.basename(sourcePath).replace(/\.ya?ml$/i, '')),
     sourcePath: absoluteSource,
@@ -126,8 +129,10 @@ export function parseScenarioText(text: string, sourcePath: string | null, overr
     handling: {
       pickupSeconds: toHandlingSpec(handling.pickupSeconds),
       dropSeconds: toHandlingSpec(handling.dropSeconds),
+      ...(stations === undefined ? {} : { stations }),
     },
-    fleet: { robots },
+    fleet: { robots, ...(battery === undefined ? {} : { battery }) },
+    ...(breakdowns === undefined ? {} : { faults: { breakdowns } }),
     demand,
     policy: { name: policyName, options: policyOptions },
     run: {
@@ -185,6 +190,83 @@ const handlingSecondsSchema = z.union(
     ),
   ],
   { error: 'a number of seconds >= 0, or {dist: uniform, min, max}, {dist: exponential, mean} or {dist: fixed, seconds}' },
+);
+
+/**
+ * A duration in the field's own unit (`unit`: hours or minutes): a number is the mean of an
+ * exponential distribution (the reliability convention), or {dist: exponential, mean},
+ * {dist: uniform, min, max} or {dist: fixed, <unit>}.
+ */
+function durationSchema(unit: 'hours' | 'minutes') {
+  const mean = positiveNumber(`a mean in ${unit} > 0`);
+  return z.union(
+    [
+      mean,
+      z.discriminatedUnion(
+        'dist',
+        [
+          strict({ dist: z.literal('exponential'), mean }, 'a mapping', ' (for dist: exponential)'),
+          strict({ dist: z.literal('uniform'), min: nonNegativeNumber(`a number of ${unit} >= 0`), max: positiveNumber(`a number of ${unit} > 0`) }, 'a mapping', ' (for dist: uniform)').superRefine(
+            (value, context) => {
+              if (value.min > value.max) context.addIssue({ code: 'custom', path: ['max'], message: `a number of ${unit} >= min (${value.min})`, input: value.max });
+            },
+          ),
+          unit === 'hours'
+            ? strict({ dist: z.literal('fixed'), hours: positiveNumber('a number of hours > 0') }, 'a mapping', ' (for dist: fixed)')
+            : strict({ dist: z.literal('fixed'), minutes: positiveNumber('a number of minutes > 0') }, 'a mapping', ' (for dist: fixed)'),
+        ],
+        { error: 'dist: exponential, uniform or fixed' },
+      ),
+    ],
+    { error: `a mean in ${unit} > 0 (exponential), or {dist: exponential, mean}, {dist: uniform, min, max} or {dist: fixed, ${unit}}` },
+  );
+}
+
+const fraction = (expected: string) => numberWhere(expected, (v) => v > 0 && v <= 1);
+
+const batterySchema = strict(
+  {
+    runHours: positiveNumber('hours of operation on a full charge > 0'),
+    chargeHours: positiveNumber('hours to charge from empty to full > 0'),
+    chargeBelow: numberWhere('a charge fraction > 0 and < 1', (v) => v > 0 && v < 1).optional(),
+    chargeUpTo: fraction('a charge fraction > 0 and <= 1').optional(),
+  },
+  'a mapping {runHours, chargeHours, chargeBelow, chargeUpTo}',
+).superRefine((battery, context) => {
+  const below = battery.chargeBelow ?? defaultBattery.chargeBelow;
+  const upTo = battery.chargeUpTo ?? defaultBattery.chargeUpTo;
+  if (upTo <= below) {
+    const field = battery.chargeUpTo !== undefined ? 'chargeUpTo' : 'chargeBelow';
+    const message = field === 'chargeUpTo' ? `a charge fraction > chargeBelow (${below}) and <= 1` : `a charge fraction > 0 and < chargeUpTo (${upTo})`;
+    context.addIssue({ code: 'custom', path: [field], message, input: battery[field] });
+  }
+});
+
+const breakdownsSchema = strict({ mtbfHours: durationSchema('hours'), mttrMinutes: durationSchema('minutes') }, 'a mapping {mtbfHours, mttrMinutes}');
+
+const faultsSchema = strict({ breakdowns: breakdownsSchema.optional() }, 'a mapping {breakdowns}');
+
+const stationHandlingSchema = strict(
+  { pickupSeconds: handlingSecondsSchema.optional(), dropSeconds: handlingSecondsSchema.optional() },
+  'a mapping {pickupSeconds, dropSeconds}',
+).superRefine((value, context) => {
+  if (value.pickupSeconds === undefined && value.dropSeconds === undefined) {
+    context.addIssue({ code: 'custom', path: [], message: 'a mapping with pickupSeconds or dropSeconds (or both)', input: value });
+  }
+});
+
+const handlingSchema = strict(
+  {
+    pickupSeconds: handlingSecondsSchema.optional(),
+    dropSeconds: handlingSecondsSchema.optional(),
+    groups: z
+      .record(z.string(), z.array(z.string({ error: 'a station cell written "x:y"' }), { error: 'a list of station cells "x:y"' }), {
+        error: 'a mapping of group names to lists of station cells "x:y"',
+      })
+      .optional(),
+    stations: z.record(z.string(), stationHandlingSchema, { error: 'a mapping of station cells "x:y" or group names to {pickupSeconds, dropSeconds}' }).optional(),
+  },
+  'a mapping {pickupSeconds, dropSeconds, groups, stations}',
 );
 
 const weightsSchema = z
@@ -292,8 +374,8 @@ const scenarioShape = {
   layout: z
     .string({ error: 'the floor as text rows of the characters .#PDSHC (a block: layout: |)' })
     .refine((v) => v.trim() !== '', { error: 'the floor as text rows (a block: layout: |)' }),
-  handling: strict({ pickupSeconds: handlingSecondsSchema.optional(), dropSeconds: handlingSecondsSchema.optional() }, 'a mapping {pickupSeconds, dropSeconds}').optional(),
-  fleet: strict({ robots: positiveInteger('a positive integer (the number of robots)') }, 'a mapping {robots}'),
+  handling: handlingSchema.optional(),
+  fleet: strict({ robots: positiveInteger('a positive integer (the number of robots)'), battery: batterySchema.optional() }, 'a mapping {robots, battery}'),
   demand: demandSchema,
   policy: z
     .looseObject(
@@ -303,11 +385,13 @@ const scenarioShape = {
     .optional()
     .default({ name: 'token-passing' }),
   run: runSchema.optional(),
+  faults: faultsSchema.optional(),
 };
 const scenarioSchema = strict(scenarioShape, 'a mapping of scenario fields');
 
 type ParsedScenario = z.output<typeof scenarioSchema>;
 type ParsedHandling = z.output<typeof handlingSecondsSchema> | undefined;
+type ParsedScenarioHandling = z.output<typeof handlingSchema>;
 type ParsedPickups = z.output<typeof pickupsSchema> | undefined;
 type ParsedDrops = z.output<typeof dropsSchema> | undefined;
 
@@ -677,10 +761,117 @@ function checkLayoutForDemand(layout: Layout, mode: DemandMode, context: Context
     fail(
       context,
       ['layout'],
-      `got ${describeCell(layout, cell)} that cannot be reached from ${describeCell(layout, reference)}, expected every P, D, S and H cell in one connected area`,
+      `got ${describeCell(layout, cell)} that cannot be reached from ${describeCell(layout, reference)}, expected every P, D, S, H and C cell in one connected area`,
       layoutRowLine(context, Math.floor(cell / layout.width)),
     );
   }
+}
+
+// ---------------------------------------------------------------------------------------
+// Operating realism: per-station handling, battery, breakdowns.
+
+/**
+ * `handling.groups` names sets of station cells; `handling.stations` keys are a station cell
+ * `x:y` or a group name, each with pickupSeconds and/or dropSeconds. A field applies to the
+ * cells of its kind in the demand's mode (pickupSeconds: P in delivery mode, S in round
+ * trips; dropSeconds: D). A cell key wins over a group holding the cell; two groups giving
+ * one cell the same field is an error. Returns undefined when nothing is overridden.
+ */
+function normalizeStationHandling(handling: ParsedScenarioHandling, mode: DemandMode, layout: Layout, context: Context): Map<number, StationHandling> | undefined {
+  const pickupKindHere = mode === 'round-trip' ? CellKind.Storage : CellKind.Pickup;
+  const stationKinds = mode === 'round-trip' ? 'S or D' : 'P or D';
+  const isStation = (cell: number) => layout.kind[cell] === pickupKindHere || layout.kind[cell] === CellKind.Drop;
+  const stationCell = (label: string, field: (string | number)[]): number => {
+    const cell = parseCellLabel(layout, label);
+    if (cell === null || !isStation(cell)) {
+      const found = cell === null ? `a station cell written x:y inside the ${layout.width}x${layout.height} grid` : `a station cell (${stationKinds} in ${mode} mode), not ${describeCell(layout, cell)}`;
+      fail(context, field, `got ${JSON.stringify(label)}, expected ${found}`);
+    }
+    return cell;
+  };
+  const groups = new Map<string, number[]>();
+  for (const [name, members] of Object.entries(handling.groups ?? {})) {
+    if (name.includes(':') || name.trim() === '') fail(context, ['handling', 'groups', name], `got the group name ${JSON.stringify(name)}, expected a name without ":" (cells are written x:y)`);
+    if (members.length === 0) fail(context, ['handling', 'groups', name], 'got an empty list, expected at least one station cell "x:y"');
+    const cells: number[] = [];
+    members.forEach((label, i) => {
+      const cell = stationCell(label, ['handling', 'groups', name, i]);
+      if (cells.includes(cell)) fail(context, ['handling', 'groups', name, i], `got ${JSON.stringify(label)} twice, expected each cell once`);
+      cells.push(cell);
+    });
+    groups.set(name, cells);
+  }
+  const entries = Object.entries(handling.stations ?? {});
+  if (entries.length === 0) return undefined;
+  const fromGroup = new Map<number, StationHandling>();
+  const groupOf = new Map<string, string>();
+  const fromCell = new Map<number, StationHandling>();
+  for (const [key, value] of entries) {
+    const field = ['handling', 'stations', key];
+    const cells = groups.get(key) ?? (key.includes(':') ? [stationCell(key, field)] : null);
+    if (cells === null) {
+      const known = groups.size > 0 ? `; groups: ${[...groups.keys()].join(', ')}` : '';
+      fail(context, field, `got ${JSON.stringify(key)}, expected a station cell "x:y" or a group named in handling.groups${known}`);
+    }
+    const isGroup = groups.has(key);
+    for (const [name, kind, what] of [
+      ['pickupSeconds', pickupKindHere, mode === 'round-trip' ? 'storage points (S)' : 'pickup points (P)'],
+      ['dropSeconds', CellKind.Drop, 'drop points (D)'],
+    ] as const) {
+      const spec = value[name];
+      if (spec === undefined) continue;
+      const applies = cells.filter((cell) => layout.kind[cell] === kind);
+      if (applies.length === 0) {
+        const which = isGroup ? `group ${JSON.stringify(key)} has none` : `${describeCell(layout, cells[0])} is not one`;
+        fail(context, [...field, name], `got a ${name} for ${JSON.stringify(key)}, expected it only for ${what} in ${mode} mode (${which})`);
+      }
+      for (const cell of applies) {
+        const target = isGroup ? fromGroup : fromCell;
+        const entry = target.get(cell) ?? {};
+        if (isGroup && entry[name] !== undefined) {
+          fail(context, [...field, name], `got a second ${name} for ${cellLabel(layout, cell)} (also in group ${JSON.stringify(groupOf.get(`${cell}/${name}`))}), expected each cell in at most one group with ${name}`);
+        }
+        entry[name] = toHandlingSpec(spec);
+        target.set(cell, entry);
+        if (isGroup) groupOf.set(`${cell}/${name}`, key);
+      }
+    }
+  }
+  const merged = new Map<number, StationHandling>();
+  const cellsInOrder = [...new Set([...fromGroup.keys(), ...fromCell.keys()])].sort((a, b) => a - b);
+  for (const cell of cellsInOrder) merged.set(cell, { ...fromGroup.get(cell), ...fromCell.get(cell) });
+  return merged;
+}
+
+function normalizeBattery(battery: NonNullable<ParsedScenario['fleet']['battery']>, layout: Layout, context: Context): BatterySpec {
+  if (layout.chargers.length === 0) {
+    fail(context, ['fleet', 'battery'], 'got a battery, expected at least one charger (C) in the layout for the robots to charge at');
+  }
+  return {
+    runHours: battery.runHours,
+    chargeHours: battery.chargeHours,
+    chargeBelow: battery.chargeBelow ?? defaultBattery.chargeBelow,
+    chargeUpTo: battery.chargeUpTo ?? defaultBattery.chargeUpTo,
+  };
+}
+
+type ParsedDuration = z.output<ReturnType<typeof durationSchema>>;
+
+/** A duration in `unitSeconds` units (3600 for hours, 60 for minutes) as a spec in seconds; a bare number is an exponential mean. */
+function toDurationSeconds(value: ParsedDuration, unitSeconds: number): HandlingSpec {
+  if (typeof value === 'number') return { dist: 'exponential', mean: value * unitSeconds };
+  switch (value.dist) {
+    case 'exponential':
+      return { dist: 'exponential', mean: value.mean * unitSeconds };
+    case 'uniform':
+      return { dist: 'uniform', min: value.min * unitSeconds, max: value.max * unitSeconds };
+    case 'fixed':
+      return { dist: 'fixed', seconds: ('hours' in value ? value.hours : value.minutes) * unitSeconds };
+  }
+}
+
+function normalizeBreakdowns(breakdowns: NonNullable<NonNullable<ParsedScenario['faults']>['breakdowns']>): BreakdownSpec {
+  return { timeToFailure: toDurationSeconds(breakdowns.mtbfHours, 3600), repair: toDurationSeconds(breakdowns.mttrMinutes, 60) };
 }
 
 function toHandlingSpec(value: ParsedHandling): HandlingSpec {

@@ -192,8 +192,12 @@ export function componentLabels(layout: Layout, allowed?: Uint8Array): { labels:
   return { labels, count };
 }
 
+/**
+ * Endpoints (Ma et al. AAMAS 2017): task endpoints (P, D, S) and non-task endpoints where
+ * robots rest (parking H, and chargers C, where a robot stays for its whole charge).
+ */
 export function isEndpointKind(kind: number): boolean {
-  return kind === CellKind.Pickup || kind === CellKind.Drop || kind === CellKind.Storage || kind === CellKind.Parking;
+  return kind === CellKind.Pickup || kind === CellKind.Drop || kind === CellKind.Storage || kind === CellKind.Parking || kind === CellKind.Charger;
 }
 
 export interface WellFormedness {
@@ -215,6 +219,8 @@ export interface WellFormedness {
  * check stops at the first violation in reading order.
  */
 export function checkWellFormed(layout: Layout, robots: number): WellFormedness {
+  // Chargers are endpoints (no path may need to cross one) but are not counted as rest
+  // places here: a charger is held by the robot charging on it, so idle robots need parking.
   if (layout.parking.length < robots) {
     return {
       wellFormed: false,

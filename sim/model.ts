@@ -49,18 +49,55 @@ export interface RunSpec {
   recoverySeconds: number;
 }
 
+/** Handling overrides of one station (a P, D or S cell); a field left out keeps the default. */
+export interface StationHandling {
+  pickupSeconds?: HandlingSpec;
+  dropSeconds?: HandlingSpec;
+}
+
+/**
+ * Battery of every robot (`fleet.battery`). One drain rate for everything a robot does
+ * except charging (driving, handling, waiting, parked, broken): a full charge lasts
+ * `runHours`; charging is linear, `chargeHours` from empty to full.
+ */
+export interface BatterySpec {
+  runHours: number;
+  chargeHours: number;
+  /** At or below this fraction a robot finishes its task and goes to charge. */
+  chargeBelow: number;
+  /** The fraction it charges to. */
+  chargeUpTo: number;
+}
+
+/**
+ * Breakdowns (`faults.breakdowns`): time to failure counted in calendar time from the end of
+ * the last repair, then a repair time; both as duration specs in seconds (the loader turns
+ * the user's hours and minutes into seconds).
+ */
+export interface BreakdownSpec {
+  timeToFailure: HandlingSpec;
+  repair: HandlingSpec;
+}
+
 export interface Scenario {
   name: string;
   /** Absolute path of the scenario file, or null when built in code. */
   sourcePath: string | null;
   units: { cellMeters: number; robotSpeedMps: number };
   layoutText: string;
-  handling: { pickupSeconds: HandlingSpec; dropSeconds: HandlingSpec };
-  fleet: { robots: number };
+  /** `stations`: per-station overrides keyed by cell index (absent: none). */
+  handling: { pickupSeconds: HandlingSpec; dropSeconds: HandlingSpec; stations?: Map<number, StationHandling> };
+  /** `battery` absent: robots never charge. */
+  fleet: { robots: number; battery?: BatterySpec };
+  /** Absent: no faults. */
+  faults?: { breakdowns?: BreakdownSpec };
   demand: DemandSpec;
   policy: { name: string; options: Record<string, unknown> };
   run: RunSpec;
 }
+
+/** Defaults of the optional battery fields (common practice for opportunity charging: keep the charge between about 20% and 90%). */
+export const defaultBattery = { chargeBelow: 0.2, chargeUpTo: 0.9 } as const;
 
 export const defaultRun: RunSpec = {
   hours: 4,
