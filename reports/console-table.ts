@@ -5,6 +5,7 @@
 import type { Interval } from './stats/index.ts';
 import type { RunSummary } from './summary.ts';
 import { safetyNote } from './safety.ts';
+import { realismLines, realismRows } from './realism-table.ts';
 
 type Unit = 'count' | 'seconds' | 'percent' | 'rate' | 'hours';
 
@@ -110,6 +111,7 @@ export function renderRunTable(summary: RunSummary): string {
     intervalRow('robot time: handling', summary.robotTime.handling, 'percent'),
     intervalRow('robot time: waiting/blocked', summary.robotTime.waiting, 'percent'),
     intervalRow('robot time: parked', summary.robotTime.parked, 'percent'),
+    ...realismRows(summary, intervalRow),
     intervalRow('deadlock episodes (per replication)', summary.deadlocks, 'count'),
     intervalRow('livelock episodes (per replication)', summary.livelocks, 'count'),
     intervalRow('fleet gridlock episodes (per rep.)', summary.gridlocks, 'count'),
@@ -121,6 +123,7 @@ export function renderRunTable(summary: RunSummary): string {
     `collisions ${summary.collisions} | tasks released ${summary.tasks.released}, delivered ${summary.tasks.delivered}, open at end ${summary.tasks.open} (all replications, whole run)`,
   );
   lines.push(describeStability(summary));
+  lines.push(...realismLines(summary, renderColumns));
   if (summary.batchMeans !== null && summary.batchMeans.unreliable.length > 0) {
     lines.push(
       `note: batch-means intervals not reliable for ${summary.batchMeans.unreliable.join(', ')} (lag-1 correlation of batch means still above ${summary.batchMeans.maximumLag1} at ${summary.batchMeans.minimumBatches} batches); use --reps 2 or more, or a longer run`,

@@ -6,12 +6,14 @@ import { stringify } from 'csv-stringify/sync';
 import type { ReplicationRecord } from '../sim/engine.ts';
 import type { ReplicationMetrics, RunSummary } from './summary.ts';
 import { intervalLengthOf } from '../sim/metrics.ts';
+import { realismColumns } from './realism-csv.ts';
 
 const round = (v: number | null, digits = 6): number | string => (v !== null && Number.isFinite(v) ? Number(v.toFixed(digits)) : '');
 
 const roundOrEmpty = (v: number | null): number | string => (v === null ? '' : round(v));
 
-export function replicationsCsv(records: ReplicationRecord[], perReplication: ReplicationMetrics[]): string {
+/** `summary`: adds the charging and breakdown columns when the run has them. */
+export function replicationsCsv(records: ReplicationRecord[], perReplication: ReplicationMetrics[], summary?: RunSummary): string {
   const rows = records.map((record, i) => {
     const w = perReplication[i];
     return {
@@ -51,6 +53,7 @@ export function replicationsCsv(records: ReplicationRecord[], perReplication: Re
       open: record.open,
       collisions: record.collisions,
       agentSteps: record.agentSteps,
+      ...(summary ? realismColumns(summary, w) : {}),
     };
   });
   return stringify(rows, { header: true });

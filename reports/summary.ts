@@ -27,6 +27,7 @@ import { windowMetrics, type WindowMetrics } from './window-metrics.ts';
 import { assessStability, type StabilityReport } from './stability.ts';
 import { safetyNote } from './safety.ts';
 import { demandMixGap, stationGroupSummaries, stationRows, type StationGroupSummary, type StationRow } from './station-summary.ts';
+import { summarizeRealism, type BreakdownSummary, type ChargingSummary, type HourlySummary, type LeadTimeSplitSummary } from './realism-summary.ts';
 
 export interface WarmupInfo {
   /** `none`: no automatic cut because demand varies in time (see `note`). */
@@ -75,13 +76,24 @@ export interface RunSummary {
   leadTimeP95Seconds: Interval;
   /** Lead times include the ages of tasks still open at the end (unstable runs): lower bounds, no interval. */
   leadTimeIncludesOpenTasks: boolean;
+  /** Mean lead time of delivered tasks split into waiting for a robot, empty travel, loaded travel and handling (they add up to it). */
+  leadTimeSplit: LeadTimeSplitSummary;
+  /** Demand with an hourly profile: throughput and lead time per hour of the profile. */
+  hourly?: HourlySummary;
   tasksInSystem: Interval;
   /** Bounded backlog (no material, significant growth of tasks in system after the warm-up); null for saturated (capacity) runs. */
   stable: boolean | null;
   /** Trend of tasks in system after the warm-up, tasks per hour. */
   backlogGrowthPerHour: Interval;
   stability: StabilitySummary;
-  robotTime: { loaded: Interval; empty: Interval; handling: Interval; waiting: Interval; parked: Interval };
+  /** `charging` with a battery (at, going to or waiting for a charger), `broken` with breakdowns. */
+  robotTime: { loaded: Interval; empty: Interval; handling: Interval; waiting: Interval; parked: Interval; charging?: Interval; broken?: Interval };
+  /** With breakdowns: share of robot time not broken down. */
+  availability?: Interval;
+  /** With a battery. */
+  charging?: ChargingSummary;
+  /** With breakdowns. */
+  breakdowns?: BreakdownSummary;
   /** Per replication, always (with one replication: the count, no interval). */
   deadlocks: Interval;
   livelocks: Interval;
@@ -206,8 +218,12 @@ function finestBatches(record: ReplicationRecord, cutIntervals: number): WindowM
   return batches;
 }
 
-/** `warmupOverride` imposes one cut on several runs. */
-export function summarize(scenario: Scenario, records: ReplicationRecord[], wallSeconds: number, warmupOverride?: WarmupInfo): SummaryParts {
+/**
+ * `warmupOverride` imposes one cut on several runs. `breakdownBaseline`: throughput per
+ * replication (post-warm-up, same order) of the same scenario without breakdowns, for the
+ * paired throughput lost (experiments/breakdown-baseline.ts).
+ */
+export function summarize(scenario: Scenario, records: ReplicationRecord[], wallSeconds: number, warmupOverride?: WarmupInfo, breakdownBaseline: number[] | null = null): SummaryParts {
   const warmup = warmupOverride ?? warmupCut(scenario, records);
   const intervalCount = records[0].metrics.intervalCount;
   const confidence = scenario.run.confidence;
@@ -298,6 +314,7 @@ export function summarize(scenario: Scenario, records: ReplicationRecord[], wall
   const sum = (pick: (r: ReplicationRecord) => number) => records.reduce((s, r) => s + pick(r), 0);
   const demand = scenario.demand;
 
+  const realism = summarizeRealism(scenario, records, perReplication, { interval, perReplicationInterval, leadInterval }, warmup.intervals, breakdownBaseline);
   const throughput = interval('throughputPerHour', (w) => w.throughputPerHour, 'nonNegative');
   const lead = leadInterval('leadTimeSeconds', (w) => w.leadTimeSeconds);
   const inSystem = interval('tasksInSystem', (w) => w.tasksInSystem, 'nonNegative');
@@ -323,6 +340,8 @@ export function summarize(scenario: Scenario, records: ReplicationRecord[], wall
     leadTimeP50Seconds: leadInterval('leadTimeP50Seconds', (w) => w.leadTimeP50Seconds),
     leadTimeP95Seconds: leadInterval('leadTimeP95Seconds', (w) => w.leadTimeP95Seconds),
     leadTimeIncludesOpenTasks: unstable,
+    leadTimeSplit: realism.leadTimeSplit,
+    ...(realism.hourly ? { hourly: realism.hourly } : {}),
     tasksInSystem: inSystem,
     stable: stability.stable,
     backlogGrowthPerHour: stability.backlogGrowthPerHour,
@@ -346,7 +365,11 @@ export function summarize(scenario: Scenario, records: ReplicationRecord[], wall
       handling: interval('robotTime.handling', (w) => w.robotTime.handling, 'fraction'),
       waiting: interval('robotTime.waiting', (w) => w.robotTime.waiting, 'fraction'),
       parked: interval('robotTime.parked', (w) => w.robotTime.parked, 'fraction'),
+      ...realism.robotTime,
     },
+    ...(realism.availability ? { availability: realism.availability } : {}),
+    ...(realism.charging ? { charging: realism.charging } : {}),
+    ...(realism.breakdowns ? { breakdowns: realism.breakdowns } : {}),
     deadlocks: perReplicationInterval((w) => w.deadlocks, 'nonNegative'),
     livelocks: perReplicationInterval((w) => w.livelocks, 'nonNegative'),
     gridlocks: perReplicationInterval((w) => w.gridlocks, 'nonNegative'),

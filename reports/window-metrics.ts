@@ -6,6 +6,7 @@
  */
 import { StationGroup, type ReplicationRecord } from '../sim/engine.ts';
 import { quantileSorted } from './stats/index.ts';
+import { realismWindow, type RealismWindow } from './realism-window.ts';
 
 /** Station shares over the window; for a group, averaged over its stations (NaN for an empty group). */
 export interface StationWindow {
@@ -33,7 +34,10 @@ export interface WindowMetrics {
   leadTimeP95Seconds: number;
   /** NaN for capacity runs: the pool of a saturated run is artificial. */
   tasksInSystem: number;
-  robotTime: { loaded: number; empty: number; handling: number; waiting: number; parked: number };
+  /** Shares of robot time; `charging` and `broken` are 0 without a battery or breakdowns. */
+  robotTime: { loaded: number; empty: number; handling: number; waiting: number; parked: number; charging: number; broken: number };
+  /** Charging, breakdowns and the lead-time split (reports/realism-window.ts). */
+  realism: RealismWindow;
   /** Episodes detected in the window, by kind (sim/deadlock-detector.ts). */
   deadlocks: number;
   livelocks: number;
@@ -93,7 +97,8 @@ export function windowMetrics(record: ReplicationRecord, from: number, to: numbe
     releasedCells += m.releasedLoadedCells[i];
     for (let a = 0; a < 5; a++) activity[a] += m.robotTicks[i * 5 + a];
   }
-  const robotTicks = activity.reduce((s, v) => s + v, 0) || 1;
+  const realism = realismWindow(record, from, to, delivered, activity.reduce((s, v) => s + v, 0));
+  const robotTicks = activity.reduce((s, v) => s + v, 0) + realism.chargingRobotTicks + realism.brokenRobotTicks || 1;
 
   const stationCount = m.stationCount;
   const sums = (array: ArrayLike<number>): number[] => {
@@ -168,7 +173,10 @@ export function windowMetrics(record: ReplicationRecord, from: number, to: numbe
       handling: activity[2] / robotTicks,
       waiting: activity[3] / robotTicks,
       parked: activity[4] / robotTicks,
+      charging: realism.chargingRobotTicks / robotTicks,
+      broken: realism.brokenRobotTicks / robotTicks,
     },
+    realism,
     deadlocks: counts.deadlock,
     livelocks: counts.livelock,
     gridlocks: counts.gridlock,

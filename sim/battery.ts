@@ -17,8 +17,8 @@
  */
 import type { BatterySpec } from './model.ts';
 
-/** Tolerance of threshold comparisons, so that a charge computed as 0.2 - 1e-17 is 0.2. */
-const epsilon = 1e-9;
+/** Tolerance of threshold comparisons in ticks, so that a crossing computed as 2880.0000000001 is tick 2880. */
+const epsilon = 1e-6;
 
 export class BatteryBank {
   readonly drainPerTick: number;
@@ -57,9 +57,13 @@ export class BatteryBank {
     this.charging[robot] = 1;
   }
 
-  /** Robot r is unplugged at tick t. */
-  stopCharging(robot: number, tick: number): void {
+  /**
+   * Robot r is unplugged at tick t. With `level`, the charger stopped at that set point (the
+   * whole tick it reached it in rounds the time up, not the charge).
+   */
+  stopCharging(robot: number, tick: number, level?: number): void {
     this.settle(robot, tick);
+    if (level !== undefined) this.charge[robot] = Math.min(this.charge[robot], level);
     this.charging[robot] = 0;
   }
 
@@ -69,17 +73,15 @@ export class BatteryBank {
    */
   tickAtOrBelow(robot: number, tick: number, level: number): number {
     if (this.charging[robot]) return Infinity;
-    const now = this.levelAt(robot, tick);
-    if (now <= level + epsilon) return tick;
-    return tick + Math.ceil((now - level) / this.drainPerTick - epsilon);
+    const ticks = (this.levelAt(robot, tick) - level) / this.drainPerTick;
+    return ticks <= epsilon ? tick : tick + Math.ceil(ticks - epsilon);
   }
 
   /** First tick >= `tick` at which robot r, charging, is at or above `level` (Infinity while it drains). */
   tickAtOrAbove(robot: number, tick: number, level: number): number {
     if (!this.charging[robot]) return Infinity;
-    const now = this.levelAt(robot, tick);
-    if (now >= level - epsilon) return tick;
-    return tick + Math.ceil((level - now) / this.chargePerTick - epsilon);
+    const ticks = (level - this.levelAt(robot, tick)) / this.chargePerTick;
+    return ticks <= epsilon ? tick : tick + Math.ceil(ticks - epsilon);
   }
 
   private settle(robot: number, tick: number): void {

@@ -178,6 +178,14 @@ export class DeadlockDetector {
     return this.episodeOf[robot];
   }
 
+  /**
+   * The robot made progress outside the detector's view (a breakdown or its repair, a charge
+   * begun or done: sim/upkeep.ts): its stall clock restarts.
+   */
+  restart(robot: number, tick: number): void {
+    this.progress(robot, tick);
+  }
+
   /** The operator moved the robot: it leaves its episode, cleared, and starts afresh. */
   relocated(robot: number, tick: number): void {
     if (this.episodeOf[robot] >= 0) this.leave(robot, tick, true);
@@ -205,7 +213,7 @@ export class DeadlockDetector {
     const nextStamp = this.nextStamp;
     const nextOccupant = this.nextOccupant;
     for (let r = 0; r < robots; r++) {
-      const c = handlingPhase(phases[r]) ? cells[r] : next[r];
+      const c = world.isFixed(r) ? cells[r] : next[r];
       nextStamp[c] = stamp;
       nextOccupant[c] = r;
     }
@@ -238,8 +246,8 @@ export class DeadlockDetector {
         this.goalSeen[r] = goal;
         this.progress(r, tick);
         if (goal >= 0) this.goalProgress.observe(r, goal, cell); // starts following the new goal
-      } else if (goal < 0) {
-        // No goal (idle or handling): nothing to progress towards; keep the clock fresh.
+      } else if (goal < 0 || world.robotBroken[r]) {
+        // No goal (idle, handling, charging) or broken down: nothing to progress towards; keep the clock fresh.
         this.lastProgress[r] = tick;
         this.movesSinceProgress[r] = 0;
       } else if (moved && this.goalProgress.observe(r, goal, cell)) {
@@ -247,8 +255,9 @@ export class DeadlockDetector {
       }
 
       this.waitCount[r] = 0;
-      if (phase === phaseIdle) idle++;
-      if (handlingPhase(phase)) {
+      if (world.mayTakeTask(r)) idle++;
+      // Handling, charging or broken down: in service, a robot others queue behind.
+      if (world.isFixed(r)) {
         status[r] = WaitStatus.Handling;
         continue;
       }
@@ -257,7 +266,8 @@ export class DeadlockDetector {
         status[r] = WaitStatus.Moving;
         continue;
       }
-      if (phase === phaseIdle) {
+      if (phase === phaseIdle || goal < 0) {
+        // Idle, or queued for a charger: it goes on only when its policy moves it.
         status[r] = WaitStatus.IdleStill;
         continue;
       }

@@ -24,7 +24,11 @@ import type { Policy, PolicyFactory } from './policy.ts';
 import { CollisionValidator } from './validator.ts';
 import { MetricsRecorder, type RecordedMetrics } from './metrics.ts';
 import { DeadlockDetector } from './deadlock-detector.ts';
-import { ArrivalProcess, makeHandlingSampler, makePointChooser } from './demand.ts';
+import { ArrivalProcess, makePointChooser } from './demand.ts';
+import { StationHandling } from './station-handling.ts';
+import { Upkeep, UpkeepCategory } from './upkeep.ts';
+import type { RecordedUpkeepMetrics } from './upkeep-metrics.ts';
+import { TaskTiming, type RecordedTaskTiming } from './task-timing.ts';
 import { RunError } from './errors.ts';
 import { restSpotsForFleet } from './rest-cells.ts';
 
@@ -34,7 +38,7 @@ const phaseIdle = Phase.Idle;
 const handlingPhase = isHandling;
 const loadedPhase = isLoaded;
 
-const EventKind = { Motion: 0, HandlingDone: 1, Release: 2, Recover: 3, Wake: 4, Check: 5, End: 6 } as const;
+const EventKind = { Motion: 0, HandlingDone: 1, Release: 2, Recover: 3, Wake: 4, Check: 5, Upkeep: 6, End: 7 } as const;
 
 /** Station groups: where work queues (pickups; pick stations in round trips), and drops. */
 export const StationGroup = { Pickup: 0, Drop: 1 } as const;
@@ -102,6 +106,18 @@ export interface ReplicationRecord {
   shelvesAtStorage: number;
   /** Wall-clock figures: the only part of a record that differs between identical runs. */
   timing: { wallSeconds: number; planningSeconds: number };
+  /** Lead-time parts and the hourly profile of delivered tasks (sim/task-timing.ts). */
+  taskTiming: RecordedTaskTiming;
+  /** Charging and breakdowns (sim/upkeep-metrics.ts); null when the scenario has neither. */
+  upkeep: UpkeepRecord | null;
+}
+
+export interface UpkeepRecord {
+  metrics: RecordedUpkeepMetrics;
+  /** Charger cells, in the order of the charger arrays in `metrics`. */
+  chargerCells: Int32Array;
+  /** Robots whose charge reached 0 at least once. */
+  ranFlatRobots: number;
 }
 
 export interface ReplicationHooks {
@@ -176,8 +192,8 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
   const handlingStream = streamFor(seed, replication, 'handling');
   const policyStream = streamFor(seed, replication, 'policy');
 
-  const pickupHandling = makeHandlingSampler(scenario.handling.pickupSeconds, tickSeconds);
-  const dropHandling = makeHandlingSampler(scenario.handling.dropSeconds, tickSeconds);
+  const handlingAt = new StationHandling(scenario.handling, tickSeconds);
+  const taskTiming = new TaskTiming(intervalTicks, endTick, Math.max(1, Math.round(3600 / tickSeconds)));
   const pickupCells = roundTrip ? layout.storage : layout.pickups;
   const choosePickup = demand.kind === 'trace' ? null : makePointChooser(pickupCells, demand.pickups);
   const chooseDrop = demand.kind === 'trace' ? null : makePointChooser(layout.drops, demand.drops);
@@ -207,9 +223,9 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
   let events = 0;
 
   const releaseTask = (t: number, pickup: number, drop: number): void => {
-    const pickupTicks = pickupHandling(handlingStream);
-    const dropTicks = dropHandling(handlingStream);
-    const returnTicks = roundTrip ? pickupHandling(handlingStream) : 0;
+    const pickupTicks = handlingAt.pickup(pickup)(handlingStream);
+    const dropTicks = handlingAt.drop(drop)(handlingStream);
+    const returnTicks = roundTrip ? handlingAt.pickup(pickup)(handlingStream) : 0;
     let state: number = TaskState.Open;
     if (roundTrip) {
       if (shelfBusy[pickup]) state = TaskState.Held;
@@ -224,6 +240,7 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     }
     released++;
     metrics.released(t, loadedCells(pickup, drop));
+    taskTiming.released(t);
     for (const c of [pickup, drop]) if (stationOf[c] >= 0) metrics.stationTaskReleased(stationOf[c]);
     const ws = workStation(pickup, drop);
     if (ws >= 0) metrics.stationWorkChange(ws, t, 1, 0);
@@ -280,7 +297,7 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     deepenPool = (t: number): boolean => {
       if (poolDepth! >= rule.maxDepth || world.openTasks.length + heldTasks < poolDepth!) return false;
       let idle = 0;
-      for (let r = 0; r < robots; r++) if (world.robotPhase[r] === Phase.Idle) idle++;
+      for (let r = 0; r < robots; r++) if (world.mayTakeTask(r)) idle++;
       if (idle === 0) return false;
       poolDepth = Math.min(rule.maxDepth, poolDepth! + idle);
       topUp(t);
@@ -316,7 +333,12 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
 
   const arriveIfAtGoal = (robot: number, t: number): void => {
     const goal = world.goalOf(robot);
-    if (goal >= 0 && world.robotCell[robot] === goal) startHandling(robot, t);
+    if (goal >= 0 && world.robotCell[robot] === goal) arrive(robot, t);
+  };
+  /** A robot reached its goal: a task stop starts handling, a charger starts charging. */
+  const arrive = (robot: number, t: number): void => {
+    if (world.robotPhase[robot] === Phase.ToCharger) upkeep!.arrived(robot, t);
+    else startHandling(robot, t);
   };
   world.onArrive = (robot) => startHandling(robot, world.currentTick);
 
@@ -341,6 +363,7 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
       delivered++;
       deliveredThisTick = true;
       metrics.delivered(t, world.taskRelease[task], loadedCells(world.taskPickup[task], world.taskDrop[task]));
+      taskTiming.delivered(t, world.taskRelease[task], world.taskAssignedTick[task], world.taskPickedTick[task], world.taskPickupTicks[task], world.taskDropTicks[task]);
       if (roundTrip) {
         world.robotPhase[robot] = Phase.ToReturn;
         arriveIfAtGoal(robot, t);
@@ -434,6 +457,7 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     const members = detector.activeMembers(episodeId);
     if (members.length === 0) return;
     for (const r of members.slice(members.length > 1 ? 1 : 0)) {
+      if (world.robotBroken[r]) continue; // a broken robot waits for its repair where it stands
       const target = nearestFreeParking(world, layout, distances, world.robotCell[r]);
       if (target < 0) continue;
       const from = world.robotCell[r];
@@ -455,6 +479,17 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     { world, layout, distances, tickSeconds, random: policyStream },
     setup.policyOptions as never,
   );
+  // Charging and breakdowns, only when the scenario has them (nothing changes otherwise).
+  const upkeep = Upkeep.needed(scenario)
+    ? new Upkeep(scenario, world, layout, distances, tickSeconds, intervalTicks, endTick, (r) => streamFor(seed, replication, `breakdowns/${r}`), {
+        schedule: (at, robot, kind) => {
+          if (at < endTick) queue.schedule(at, EventKind.Upkeep, EventKind.Upkeep, robot * 8 + kind);
+        },
+        progressed: (robot, t) => detector.restart(robot, t),
+        canStop: (robot, t) => policy.canStop?.(robot, t) ?? true,
+      })
+    : null;
+  const upkeepCategory = upkeep?.category ?? null;
   const moves = new Int32Array(robots);
   const wantedCells = policy.wantedCells ?? null;
   let wantedFresh = false;
@@ -467,8 +502,12 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     let handling = 0;
     let waiting = 0;
     let parked = 0;
+    let busy = 0;
     const cellWaiting = metrics.cellWaitingTicks;
     for (let r = 0; r < robots; r++) {
+      if (world.robotTask[r] >= 0) busy++;
+      // Charging and broken robots are counted by the upkeep's own recorder.
+      if (upkeepCategory !== null && upkeepCategory[r] !== UpkeepCategory.None) continue;
       const phase = world.robotPhase[r];
       if (handlingPhase(phase)) handling++;
       else if (phase !== phaseIdle) {
@@ -476,7 +515,7 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
         cellWaiting[world.robotCell[r]] += to - from;
       } else parked++;
     }
-    metrics.addStill(from, to, handling, waiting, parked, handling + waiting, world.openTasks.length > 0 ? parked : 0);
+    metrics.addStill(from, to, handling, waiting, parked, busy, world.openTasks.length > 0 ? parked : 0);
   };
 
   const executeMotion = (t: number): void => {
@@ -491,8 +530,18 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     const occupant = world.occupant;
     for (let r = 0; r < robots; r++) {
       const phase = world.robotPhase[r];
-      if (phase !== phaseIdle) busy++;
+      if (world.robotTask[r] >= 0) busy++;
       const from = cells[r];
+      if (upkeepCategory !== null && upkeepCategory[r] !== UpkeepCategory.None) {
+        // Counted by the upkeep's own recorder. Broken and charging robots stay where they
+        // are; robots going to (or waiting for) a charger move as the policy says.
+        if (world.isFixed(r)) continue;
+        const to = moves[r];
+        if (to === from) continue;
+        if (occupant[from] === r) occupant[from] = -1;
+        cells[r] = to;
+        continue;
+      }
       if (handlingPhase(phase)) {
         handling++;
         continue;
@@ -517,7 +566,7 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     motionTicks++;
     for (let r = 0; r < robots; r++) {
       const goal = world.goalOf(r);
-      if (goal >= 0 && cells[r] === goal) startHandling(r, t);
+      if (goal >= 0 && cells[r] === goal && !world.robotBroken[r]) arrive(r, t);
     }
     hooks.afterMotion?.(t, world);
   };
@@ -525,6 +574,7 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
   // Main loop -------------------------------------------------------------------------
   queue.schedule(0, EventKind.Wake, EventKind.Wake);
   queue.schedule(endTick, EventKind.End, EventKind.End);
+  upkeep?.start(0);
   const progressEvery = Math.max(1, Math.floor(endTick / 200));
   let nextProgress = progressEvery;
   let ended = false;
@@ -578,6 +628,11 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
           break;
         case EventKind.Check:
           break;
+        case EventKind.Upkeep: {
+          const payload = queue.lastPayload;
+          if (upkeep!.handle(payload >> 3, payload & 7, tick)) policyDirty = true;
+          break;
+        }
         case EventKind.End:
           ended = tick >= endTick;
           break;
@@ -588,6 +643,7 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     let wanted = Infinity;
     if (policyDirty) {
       policyDirty = false;
+      upkeep?.beforePolicy(tick);
       for (let r = 0; r < robots; r++) moves[r] = world.robotCell[r];
       if (wantedCells) wantedCells.fill(-1);
       const planStart = performance.now();
@@ -595,7 +651,7 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
       planningMs += performance.now() - planStart;
       wantedFresh = wantedCells !== null;
       for (let r = 0; r < robots; r++) {
-        if (moves[r] !== world.robotCell[r] && !handlingPhase(world.robotPhase[r])) {
+        if (moves[r] !== world.robotCell[r] && !world.isFixed(r)) {
           anyMove = true;
           break;
         }
@@ -630,6 +686,7 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
   metrics.truncate(endTick);
   accountStill(accountedUntil, endTick);
   metrics.finish();
+  upkeep?.metrics.finish(endTick);
   for (const episode of detector.finish(endTick)) metrics.episodes.push(episode);
   const counts = checkConservation(endTick);
   const openTaskReleaseTicks: number[] = [];
@@ -671,6 +728,8 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     shelvesAccounted: home + shelvesOnRobots,
     shelvesAtStorage: home,
     timing: { wallSeconds: (performance.now() - wallStart) / 1000, planningSeconds: planningMs / 1000 },
+    taskTiming: taskTiming.toRecorded(),
+    upkeep: upkeep === null ? null : { metrics: upkeep.metrics.toRecorded(), chargerCells: layout.chargers, ranFlatRobots: upkeep.ranFlatRobots.size },
   };
 }
 

@@ -12,6 +12,13 @@
  * robot rests. The engine never trusts the moves: an independent validator checks each
  * executed tick for vertex and swap collisions.
  *
+ * Operating realism (sim/upkeep.ts): the engine sends a robot whose battery ran low to a
+ * charger when it is idle (phase ToCharger, goal `world.goalOf(r)`; rest there, it charges
+ * in phase Charging and is idle again afterwards) or queues it (WaitingForCharger: rest like
+ * an idle robot, take no task); a broken-down robot (`world.robotBroken`) stands where it
+ * failed. Use `world.mayTakeTask(r)` before giving a task, `world.isFixed(r)` for robots
+ * that cannot move, `world.restsLikeIdle(r)` for robots that should go and rest.
+ *
  * Handling convention: a robot that reaches its pickup (drop, return) cell at tick t starts
  * handling at once and stays on the cell through tick t + h, h the task's handling ticks;
  * it may move again from t + h to t + h + 1. Planned policies include these waits.
@@ -34,6 +41,15 @@ export interface Policy {
    * goal, so a policy need not fill it.
    */
   readonly wantedCells?: Int32Array;
+  /**
+   * True when robot r can be stopped where it stands from `tick` on without breaking the
+   * policy's plans (a breakdown). Planned policies answer true once the robot's reserved
+   * path has ended (it rests on its last cell and nobody plans through it); until then the
+   * engine keeps the breakdown pending (`world.robotStopPending`: give the robot no new
+   * work). Omitted: always true (reactive policies see a broken robot as fixed, like a
+   * handling one).
+   */
+  canStop?(robot: number, tick: number): boolean;
   /** The engine moved robot r off the floor to a parking cell (an operator clearing a deadlock). */
   onRelocated?(robot: number, tick: number): void;
   /** Policy-specific counters for the run summary (e.g. searches, expansions). */

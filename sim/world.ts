@@ -16,6 +16,12 @@ export const Phase = {
   HandlingDrop: 4,
   ToReturn: 5,
   HandlingReturn: 6,
+  /** Battery below chargeBelow, driving to the charger it was given (`world.goalOf`). */
+  ToCharger: 7,
+  /** On its charger until charged to chargeUpTo; cannot move. */
+  Charging: 8,
+  /** Needs a charge, every charger taken: rests like an idle robot, takes no task. */
+  WaitingForCharger: 9,
 } as const;
 export type Phase = (typeof Phase)[keyof typeof Phase];
 
@@ -39,7 +45,12 @@ export function isHandling(phase: number): boolean {
 
 /** True while the robot carries a load (parcel or shelf). */
 export function isLoaded(phase: number): boolean {
-  return phase >= Phase.ToDrop;
+  return phase >= Phase.ToDrop && phase <= Phase.HandlingReturn;
+}
+
+/** True while the robot heads for, waits for, or sits on a charger. */
+export function isChargingPhase(phase: number): boolean {
+  return phase === Phase.ToCharger || phase === Phase.Charging || phase === Phase.WaitingForCharger;
 }
 
 /** Tasks counted by the state each live slot holds, plus the tasks already retired. */
@@ -67,6 +78,15 @@ export class World {
   readonly robotHandlingUntil: Int32Array;
   /** Robot standing on each cell, or -1. */
   readonly occupant: Int32Array;
+  /** Charger cell given to each robot (ToCharger, Charging), or -1. */
+  readonly robotCharger: Int32Array;
+  /** 1 while the robot is broken down: it stands where it failed and blocks its cell. */
+  readonly robotBroken: Uint8Array;
+  /**
+   * 1 while a breakdown is due but the policy cannot stop the robot yet (a planned policy
+   * whose reserved path has not ended, `Policy.canStop`): give it no new work.
+   */
+  readonly robotStopPending: Uint8Array;
 
   /** Slots in use or freed (the high-water mark of live tasks); ids are below it. */
   taskCount = 0;
@@ -117,9 +137,29 @@ export class World {
     this.robotPhase = new Uint8Array(robots);
     this.robotHandlingUntil = new Int32Array(robots);
     this.occupant = new Int32Array(layout.cellCount).fill(-1);
+    this.robotCharger = new Int32Array(robots).fill(-1);
+    this.robotBroken = new Uint8Array(robots);
+    this.robotStopPending = new Uint8Array(robots);
   }
 
-  /** The cell robot r is heading for in its task, or -1 when idle or handling. */
+  /** True while robot r cannot move whatever a policy writes: handling, charging or broken down. */
+  isFixed(robot: number): boolean {
+    const phase = this.robotPhase[robot];
+    return isHandling(phase) || phase === Phase.Charging || this.robotBroken[robot] === 1;
+  }
+
+  /** True when a policy may give robot r a task: idle, working, and no breakdown pending. */
+  mayTakeTask(robot: number): boolean {
+    return this.robotPhase[robot] === Phase.Idle && this.robotTask[robot] < 0 && this.robotBroken[robot] === 0 && this.robotStopPending[robot] === 0;
+  }
+
+  /** True when robot r has nothing to do but rest (idle, or waiting for a charger) and can move to a rest place. */
+  restsLikeIdle(robot: number): boolean {
+    const phase = this.robotPhase[robot];
+    return (phase === Phase.Idle || phase === Phase.WaitingForCharger) && this.robotTask[robot] < 0 && this.robotBroken[robot] === 0;
+  }
+
+  /** The cell robot r is heading for (its task's next stop, or its charger), or -1 when it has none (idle, handling, charging, waiting for a charger). */
   goalOf(robot: number): number {
     const task = this.robotTask[robot];
     switch (this.robotPhase[robot]) {
@@ -129,6 +169,8 @@ export class World {
         return this.taskDrop[task];
       case Phase.ToReturn:
         return this.taskReturn[task];
+      case Phase.ToCharger:
+        return this.robotCharger[robot];
       default:
         return -1;
     }

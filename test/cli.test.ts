@@ -152,7 +152,7 @@ describe('run --out', () => {
     const out = path.join(freshFolder(), 'results');
     const result = fleetwright('run', demo, '--robots', '6', '--hours', '0.25', '--reps', '2', '--seed', '5', '--json', '--out', out);
     expect(result.status, result.stderr).toBe(0);
-    const names = ['cells.csv', 'context.json', 'lead-times.csv', 'replications.csv', 'stations.csv', 'summary.json', 'throughput.csv'];
+    const names = ['cells.csv', 'context.json', 'lead-time-split.csv', 'lead-times.csv', 'replications.csv', 'stations.csv', 'summary.json', 'throughput.csv'];
     expect(readdirSync(out).sort()).toEqual(names);
 
     const files = Object.fromEntries(names.map((name) => [name, readFileSync(path.join(out, name), 'utf8')]));

@@ -82,7 +82,6 @@ import { freeParkingSpots, planRest, planTask, type ParkingAfter, type Planner }
 import { EpochAssigner, taskEndpoints } from './epoch-assignment.ts';
 
 // Read once: imported bindings are getters under the TypeScript loader, and these are read per robot per step.
-const phaseIdle = Phase.Idle;
 const phaseToPickup = Phase.ToPickup;
 
 export const flowBatchOptions = z
@@ -201,8 +200,13 @@ export class FlowBatch implements Policy {
     let parkingPending = false;
     let idle = false;
     for (let r = 0; r < robots; r++) {
-      if (world.robotPhase[r] !== phaseIdle || world.robotTask[r] >= 0) continue;
-      idle = true;
+      if (world.robotPhase[r] === Phase.ToCharger && !world.robotBroken[r]) {
+        if (!this.toCharger(r, tick)) parkingPending = true;
+        continue;
+      }
+      // Idle robots, and robots queued for a charger (they go to rest but take no task).
+      if (!world.restsLikeIdle(r)) continue;
+      if (world.mayTakeTask(r)) idle = true;
       if (this.pathEnd[r] > tick || this.isRestSpot[world.robotCell[r]]) continue;
       if (!this.park(r, tick)) parkingPending = true;
     }
@@ -232,7 +236,7 @@ export class FlowBatch implements Policy {
     if (world.openTasks.length === 0) return;
     let free: number[] = [];
     for (let r = 0; r < world.robotCount; r++) {
-      if (world.robotPhase[r] === phaseIdle && world.robotTask[r] < 0 && this.retryAt[r] <= tick) free.push(r);
+      if (world.mayTakeTask(r) && this.retryAt[r] <= tick) free.push(r);
     }
     if (free.length === 0) return;
     this.epochs++;
@@ -337,6 +341,35 @@ export class FlowBatch implements Policy {
     this.parkFailures++;
     this.parkRetryTick[robot] = this.nextEpoch;
     return false;
+  }
+
+  /**
+   * Robot r, sent to a charger by the engine, rests on it: replanned from where it stands
+   * unless its path already ends there. False while the plan failed (retried next epoch).
+   */
+  private toCharger(robot: number, tick: number): boolean {
+    const { world } = this.context;
+    const charger = world.goalOf(robot);
+    const path = this.table.paths[robot];
+    if (path && path[path.length - 1] === charger) return true;
+    if (tick < this.parkRetryTick[robot]) return false;
+    const previous = this.remainingPath(robot, tick);
+    this.table.release(robot, tick);
+    const plan = planRest(this.planner, robot, world.robotCell[robot], tick, charger);
+    if (plan) {
+      this.table.reserve(robot, plan, tick);
+      this.pathEnd[robot] = tick + plan.length - 1;
+      return true;
+    }
+    this.table.reserve(robot, previous, tick);
+    this.failedPlans++;
+    this.parkRetryTick[robot] = this.nextEpoch;
+    return false;
+  }
+
+  /** A robot may be stopped (a breakdown) once its reserved path has ended: it rests there and no other path crosses it. */
+  canStop(robot: number, tick: number): boolean {
+    return this.pathEnd[robot] <= tick;
   }
 
   /** Adds the task-ticks held back since the last step. */

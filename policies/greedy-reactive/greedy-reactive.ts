@@ -28,7 +28,7 @@ import { z } from 'zod';
 import { CellKind } from '../../sim/layout.ts';
 import type { Policy, PolicyContext, PolicyOptionDoc } from '../../sim/policy.ts';
 import { unreachable } from '../../sim/distance-table.ts';
-import { Phase, isHandling } from '../../sim/world.ts';
+import { Phase } from '../../sim/world.ts';
 
 export const greedyReactiveOptions = z.object({}).strict();
 export type GreedyReactiveOptions = z.infer<typeof greedyReactiveOptions>;
@@ -72,10 +72,11 @@ export class GreedyReactive implements Policy {
     for (let r = 0; r < robots; r++) {
       this.decidedAt[r] = tick;
       this.waitingOn[r] = -1;
-      const phase = world.robotPhase[r];
+      // Handling, charging or broken down: it stays, and holds its cell.
+      if (world.isFixed(r)) continue;
       const cell = world.robotCell[r];
       let goal = world.goalOf(r);
-      if (phase === Phase.Idle) {
+      if (world.restsLikeIdle(r)) {
         goal = this.parkingGoal(r, cell);
       } else if (this.parkingTarget[r] >= 0) {
         this.dropParking(r);
@@ -96,7 +97,7 @@ export class GreedyReactive implements Policy {
           chosen = n;
           break;
         }
-        if (wait < 0 && !this.settled(holder, tick) && !isHandling(world.robotPhase[holder])) wait = n;
+        if (wait < 0 && !this.settled(holder, tick) && !world.isFixed(holder)) wait = n;
       }
       if (chosen >= 0) {
         this.claimedFor[chosen] = next;
@@ -160,7 +161,7 @@ export class GreedyReactive implements Policy {
     const { world, distances } = this.context;
     const open = world.openTasks;
     for (let r = 0; r < world.robotCount && open.length > 0; r++) {
-      if (world.robotPhase[r] !== Phase.Idle || world.robotTask[r] !== -1) continue;
+      if (!world.mayTakeTask(r)) continue;
       const cell = world.robotCell[r];
       let best = -1;
       let bestDistance = unreachable;
@@ -191,7 +192,7 @@ export class GreedyReactive implements Policy {
     if (target < 0 && layout.kind[cell] === CellKind.Parking && this.parkingTakenBy[cell] < 0) return cell;
     if (target >= 0) {
       const other = world.occupant[target];
-      if (other < 0 || other === robot || world.robotPhase[other] !== Phase.Idle) return target;
+      if (other < 0 || other === robot || !this.resting(other)) return target;
       this.dropParking(robot);
     }
     const toRobot = distances.to(cell);
@@ -199,7 +200,7 @@ export class GreedyReactive implements Policy {
     for (const c of layout.parking) {
       if (this.parkingTakenBy[c] >= 0) continue;
       const other = world.occupant[c];
-      if (other >= 0 && world.robotPhase[other] === Phase.Idle) continue;
+      if (other >= 0 && this.resting(other)) continue;
       if (toRobot[c] < bestDistance) {
         bestDistance = toRobot[c];
         target = c;
@@ -209,6 +210,12 @@ export class GreedyReactive implements Policy {
     this.parkingTarget[robot] = target;
     this.parkingTakenBy[target] = robot;
     return target;
+  }
+
+  /** A robot with nothing to do that keeps its spot (idle or queued for a charger, broken down or not). */
+  private resting(robot: number): boolean {
+    const phase = this.context.world.robotPhase[robot];
+    return phase === Phase.Idle || phase === Phase.WaitingForCharger;
   }
 
   private dropParking(robot: number): void {

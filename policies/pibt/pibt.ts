@@ -50,7 +50,6 @@ import { z } from 'zod';
 import type { Policy, PolicyContext, PolicyOptionDoc } from '../../sim/policy.ts';
 import { Dispatcher } from './dispatch.ts';
 import type { DistanceField } from '../../sim/distance-field.ts';
-import { Phase, isHandling } from '../../sim/world.ts';
 
 export const pibtOptions = z
   .object({
@@ -256,7 +255,7 @@ export class Pibt implements Policy {
     if (world.openTasks.length === 0) return;
     const idle = this.idle;
     idle.length = 0;
-    for (let r = 0; r < this.robots; r++) if (world.robotPhase[r] === Phase.Idle && world.robotTask[r] < 0) idle.push(r);
+    for (let r = 0; r < this.robots; r++) if (world.mayTakeTask(r)) idle.push(r);
     this.dispatcher.dispatch(idle, tick, this.giveTask);
   }
 
@@ -310,12 +309,12 @@ export class Pibt implements Policy {
     const changed = this.changed;
     changed.length = 0;
     for (let r = 0; r < robots; r++) {
-      const phase = world.robotPhase[r];
       let goal: number;
-      if (isHandling(phase)) {
+      // Handling, charging or broken down robots are fixed; idle robots and robots queued for a charger rest.
+      if (world.isFixed(r)) {
         this.band[r] = Band.Handling;
         goal = -1;
-      } else if (phase !== Phase.Idle) {
+      } else if (!world.restsLikeIdle(r)) {
         this.releaseParking(r);
         this.band[r] = Band.Task;
         goal = world.goalOf(r);

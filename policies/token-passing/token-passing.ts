@@ -165,7 +165,9 @@ export class TokenPassing implements Policy {
     const firstDisplaced = queued;
     for (let i = 0; i < queued; i++) {
       const r = requests[i];
-      if (world.robotPhase[r] !== phaseIdle) continue;
+      // Idle robots, and robots the engine sends to a charger or has queued for one (not broken).
+      const phase = world.robotPhase[r];
+      if (world.robotBroken[r] || (phase !== phaseIdle && phase !== Phase.ToCharger && phase !== Phase.WaitingForCharger)) continue;
       if (this.triedVersion[r] === world.version && this.triedRevision[r] === this.wakeRevision()) continue;
       if (this.retryAt[r] > tick) {
         retryTick = Math.min(retryTick, this.retryAt[r]);
@@ -343,11 +345,14 @@ export class TokenPassing implements Policy {
     const table = this.table;
     this.requests++;
     const cell = world.robotCell[robot];
+    if (world.robotPhase[robot] === Phase.ToCharger) return this.goToCharger(robot, cell, tick);
     const toRobot = distances.to(cell);
-    // Candidates: nearest pickup first; ties in release order (the open list order).
-    const best = this.nearestEligible(robot, cell, toRobot);
+    // Candidates: nearest pickup first; ties in release order (the open list order). A robot
+    // queued for a charger (or due to break down) takes no task: it only goes to rest.
+    const mayTake = world.mayTakeTask(robot);
+    const best = mayTake ? this.nearestEligible(robot, cell, toRobot) : -1;
     const bestDistance = this.bestDistance;
-    if (this.swaps && swapsAllowed && this.swapRetryAt[robot] <= tick) {
+    if (this.swaps && swapsAllowed && mayTake && this.swapRetryAt[robot] <= tick) {
       const displaced = this.trySwap(robot, tick, best >= 0 ? bestDistance : Infinity);
       if (displaced !== -1) return displaced;
       // Performance shortcut: a robot that found no swap waits a few ticks before looking again.
@@ -376,6 +381,27 @@ export class TokenPassing implements Policy {
     this.triedVersion[robot] = world.version;
     this.triedRevision[robot] = this.wakeRevision();
     return -1;
+  }
+
+  /** Plans robot r to the charger the engine gave it, to rest (charge) there. -1 when planned, -2 when planning failed (retried with back-off). */
+  private goToCharger(robot: number, cell: number, tick: number): number {
+    const table = this.table;
+    table.release(robot, tick);
+    const path = planRest(this.planner, robot, cell, tick, this.context.world.goalOf(robot));
+    if (path) {
+      this.commit(robot, path, tick, -1);
+      return -1;
+    }
+    this.failedPlans++;
+    table.rest(robot, cell, tick);
+    this.noteEnd(robot, cell);
+    this.pathEnd[robot] = tick;
+    return -2;
+  }
+
+  /** A robot may be stopped (a breakdown) once its reserved path has ended: it rests there and no other path crosses it. */
+  canStop(robot: number, tick: number): boolean {
+    return this.pathEnd[robot] <= tick;
   }
 
   /** Plans a move to the nearest free rest spot. True when planned, null when none is free, false when planning failed. */

@@ -1,0 +1,71 @@
+/**
+ * Breakdowns (sim/breakdowns.ts, sim/upkeep.ts) against reliability theory and the engine's
+ * contract: fleet availability of an alternating renewal process, MTBF / (MTBF + MTTR)
+ * (steady-state availability; Ross, Introduction to Probability Models, ch. 7; IEC
+ * 60050-192; REFERENCES.md: MTBF 2 h, MTTR 30 min gives 0.8); breakdown times that do not
+ * depend on the policy (common random numbers); a broken robot that stays where it failed
+ * and never causes a collision.
+ */
+import { describe, expect, it } from 'vitest';
+import { makeScenario } from './helpers.ts';
+import { runReplications } from '../experiments/replications.ts';
+import { summarize } from '../reports/summary.ts';
+import { BreakdownClock, steadyStateAvailability } from '../sim/breakdowns.ts';
+import type { Scenario } from '../sim/model.ts';
+import { readFileSync } from 'node:fs';
+import { parseScenarioText } from '../scenarios/load.ts';
+import seedrandom from 'seedrandom';
+
+const demoLayout = parseScenarioText(readFileSync('scenarios/demo-sortation.yaml', 'utf8'), null).layoutText;
+
+function withBreakdowns(scenario: Scenario, mtbfHours: number, mttrMinutes: number): Scenario {
+  return { ...scenario, faults: { breakdowns: { timeToFailure: { dist: 'exponential', mean: mtbfHours * 3600 }, repair: { dist: 'exponential', mean: mttrMinutes * 60 } } } };
+}
+
+describe('steady-state availability MTBF / (MTBF + MTTR)', () => {
+  it('of the spec: MTBF 2 h, MTTR 30 min gives 0.8 (REFERENCES.md)', () => {
+    expect(steadyStateAvailability({ timeToFailure: { dist: 'exponential', mean: 7200 }, repair: { dist: 'exponential', mean: 1800 } })).toBeCloseTo(0.8, 12);
+    expect(steadyStateAvailability({ timeToFailure: { dist: 'uniform', min: 3600, max: 10800 }, repair: { dist: 'fixed', seconds: 1800 } })).toBeCloseTo(0.8, 12);
+  });
+
+  it('of one robot\'s clock over 20,000 cycles: up share within 1% of 0.8', () => {
+    const clock = new BreakdownClock({ timeToFailure: { dist: 'exponential', mean: 7200 }, repair: { dist: 'exponential', mean: 1800 } }, 1, 1, () => seedrandom('clock'));
+    let t = 0;
+    let up = 0;
+    for (let cycle = 0; cycle < 20_000; cycle++) {
+      const failure = clock.nextFailure(0, t);
+      up += failure - t;
+      t = failure + clock.repairTicks(0);
+    }
+    expect(up / t).toBeGreaterThan(0.79);
+    expect(up / t).toBeLessThan(0.81);
+  });
+
+  it('of a fleet: 100 robots over 100 h, 5 replications: the availability interval holds 0.8 and is narrow', () => {
+    // Robots rest on the demo hall (one task an hour), so the run is breakdowns alone.
+    const base = makeScenario({
+      layout: demoLayout,
+      robots: 100,
+      policy: 'pibt',
+      demand: { kind: 'poisson', mode: 'delivery', tasksPerHour: 1, profile: null, pickups: { kind: 'uniform' }, drops: { kind: 'uniform' } },
+      hours: 100,
+      replications: 5,
+      warmup: 0,
+      sampleSeconds: 3600,
+      recoverySeconds: 0,
+    });
+    const scenario = withBreakdowns({ ...base, run: { ...base.run, confidence: 0.99 } }, 2, 30);
+    const records = runReplications(scenario);
+    for (const record of records) expect(record.collisions).toBe(0);
+    const { summary } = summarize(scenario, records, 0);
+    const availability = summary.availability!;
+    expect(availability.low!).toBeLessThanOrEqual(0.8);
+    expect(availability.high!).toBeGreaterThanOrEqual(0.8);
+    expect(availability.halfWidth!).toBeLessThan(0.01);
+    // Broken share and availability are complements; 100 robots fail about 100 x 100 / 2.5 = 4000 times per replication.
+    expect(summary.robotTime.broken!.mean).toBeCloseTo(1 - availability.mean, 12);
+    expect(summary.breakdowns!.failuresPerHour.mean * 100).toBeGreaterThan(3600);
+    expect(summary.breakdowns!.failuresPerHour.mean * 100).toBeLessThan(4400);
+    expect(summary.breakdowns!.expectedAvailability).toBeCloseTo(0.8, 12);
+  });
+});
