@@ -15,6 +15,7 @@ import type { Scenario } from '../sim/model.ts';
 import { readFileSync } from 'node:fs';
 import { parseScenarioText } from '../scenarios/load.ts';
 import seedrandom from 'seedrandom';
+import { Phase, type World } from '../sim/world.ts';
 
 const demoLayout = parseScenarioText(readFileSync('scenarios/demo-sortation.yaml', 'utf8'), null).layoutText;
 
@@ -67,5 +68,58 @@ describe('steady-state availability MTBF / (MTBF + MTTR)', () => {
     expect(summary.breakdowns!.failuresPerHour.mean * 100).toBeGreaterThan(3600);
     expect(summary.breakdowns!.failuresPerHour.mean * 100).toBeLessThan(4400);
     expect(summary.breakdowns!.expectedAvailability).toBeCloseTo(0.8, 12);
+  });
+});
+
+describe('a broken robot in the engine', () => {
+  const busy = (policy: string): Scenario =>
+    withBreakdowns(
+      makeScenario({
+        layout: demoLayout,
+        robots: 20,
+        policy,
+        demand: { kind: 'poisson', mode: 'delivery', tasksPerHour: 700, profile: null, pickups: { kind: 'uniform' }, drops: { kind: 'uniform' } },
+        hours: 2,
+        replications: 1,
+        warmup: 0,
+      }),
+      0.5,
+      5,
+    );
+
+  it.each(['pibt', 'greedy-reactive', 'token-passing', 'flow-batch'])('%s: stays on its cell, holds no unpicked task, keeps its load; no collision', (policy) => {
+    const brokenAt = new Map<number, number>();
+    let brokenTicks = 0;
+    let loadedBroken = 0;
+    const watch = (_tick: number, world: World) => {
+      for (let r = 0; r < world.robotCount; r++) {
+        if (!world.robotBroken[r]) {
+          brokenAt.delete(r);
+          continue;
+        }
+        brokenTicks++;
+        const cell = brokenAt.get(r);
+        if (cell === undefined) brokenAt.set(r, world.robotCell[r]);
+        else expect(world.robotCell[r]).toBe(cell);
+        expect(world.robotPhase[r]).not.toBe(Phase.ToPickup);
+        if (world.robotPhase[r] === Phase.ToDrop) {
+          loadedBroken++;
+          expect(world.robotTask[r]).toBeGreaterThanOrEqual(0);
+        }
+      }
+    };
+    const [record] = runReplications(busy(policy), undefined, { afterMotion: watch });
+    expect(record.collisions).toBe(0);
+    expect(record.illegalSteps).toBe(0);
+    expect(brokenTicks).toBeGreaterThan(0);
+    // Reactive policies stop robots at once, so some break down while carrying a parcel.
+    if (policy === 'pibt') expect(loadedBroken).toBeGreaterThan(0);
+  });
+
+  it('breakdown times do not depend on the policy (common random numbers): reactive policies fail at the same ticks', () => {
+    const failures = (policy: string) => Array.from(runReplications(busy(policy))[0].upkeep!.metrics.failures);
+    const pibt = failures('pibt');
+    expect(pibt.reduce((s, v) => s + v, 0)).toBeGreaterThan(40);
+    expect(failures('greedy-reactive')).toEqual(pibt);
   });
 });

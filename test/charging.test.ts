@@ -9,6 +9,8 @@ import { makeScenario } from './helpers.ts';
 import { runReplications } from '../experiments/replications.ts';
 import { summarize } from '../reports/summary.ts';
 import type { Scenario } from '../sim/model.ts';
+import { parseScenarioText } from '../scenarios/load.ts';
+import { renderRunTable } from '../reports/console-table.ts';
 
 // One robot, one pickup P (1:1), one drop D (8:1) 7 cells apart, parking H (1:2) under P,
 // a charger C (8:2) under D. Pickup 3 s, drop 2 s; 1 m cells at 1 m/s: ticks are seconds.
@@ -66,5 +68,55 @@ describe('one saturated robot with a deterministic battery (Groover cycle time x
     const { summary } = summarize(scenario(policy), records, 0);
     expect(summary.throughputPerHour.mean).toBeCloseTo((3600 / cycleSeconds) * availability, 9);
     expect(summary.throughputPerHour.mean).toBeCloseTo((deliveriesPerCycle * 3600) / chargeCycleSeconds, 9);
+    // Charging time per cycle: D -> C (1 s) and the charge (637 s); the C -> D leg belongs to the next task.
+    expect(summary.robotTime.charging!.mean).toBeCloseTo((1 + 637) / chargeCycleSeconds, 9);
+    // One charger, charging 637 of every 3185 s; one charge per cycle.
+    expect(summary.charging!.chargerUtilisation.mean).toBeCloseTo(637 / chargeCycleSeconds, 9);
+    expect(summary.charging!.chargesPerHour.mean).toBeCloseTo(3600 / chargeCycleSeconds, 9);
+    expect(summary.charging!.ranFlat).toBe(0);
+    expect(summary.charging!.warning).toBeNull();
+  });
+});
+
+describe('robots queue for a single charger', () => {
+  // 9 x 5 hall, pickup 1:1, drops 7:1 and 7:2, parking 1:2 and 1:3, one charger 4:3.
+  const yaml = (battery: string) =>
+    [
+      'layout: |',
+      '  #########',
+      '  #P.....D#',
+      '  #H.....D#',
+      '  #H..C...#',
+      '  #########',
+      'handling: { pickupSeconds: 3, dropSeconds: 2 }',
+      `fleet: { robots: 2, battery: ${battery} }`,
+      'demand: { kind: saturated }',
+      'run: { hours: 6, replications: 2, warmup: 0 }',
+      '',
+    ].join('\n');
+
+  it('with sane thresholds nobody runs flat and nothing warns', () => {
+    // A charge from 0.4 to 0.9 takes 0.5 x 0.25 h = 7.5 min while the other robot works
+    // 0.5 x 0.5 h = 15 min: the charger keeps up, so nobody should run flat.
+    const scenario = parseScenarioText(yaml('{ runHours: 0.5, chargeHours: 0.25, chargeBelow: 0.4, chargeUpTo: 0.9 }'), null);
+    const records = runReplications(scenario);
+    const { summary } = summarize(scenario, records, 0);
+    expect(records.every((r) => r.collisions === 0)).toBe(true);
+    expect(summary.charging!.ranFlat).toBe(0);
+    expect(summary.charging!.warning).toBeNull();
+    // Each robot charges about every 15 + 7.5 min: more than 2 x 2 charges per hour for the two.
+    expect(summary.charging!.chargesPerHour.mean).toBeGreaterThan(4);
+  });
+
+  it('with thresholds that cannot work, robots run flat and the summary and table warn', () => {
+    // Charging from 0.05 to full takes 0.95 x 2 h = 1.9 h, the other robot's 0.05 x 0.5 h
+    // = 1.5 min of reserve is gone long before: it runs flat in the queue.
+    const scenario = parseScenarioText(yaml('{ runHours: 0.5, chargeHours: 2, chargeBelow: 0.05, chargeUpTo: 1 }'), null);
+    const records = runReplications(scenario);
+    const { summary } = summarize(scenario, records, 0);
+    expect(summary.charging!.ranFlat).toBeGreaterThan(0);
+    expect(summary.charging!.warning).toMatch(/ran flat .*throughput is optimistic; raise fleet\.battery\.chargeBelow or add chargers/);
+    expect(summary.charging!.queueRobots.mean).toBeGreaterThan(0);
+    expect(renderRunTable(summary)).toMatch(/\nwarning: \d+ robots? ran flat/);
   });
 });
