@@ -11,6 +11,9 @@ import { summarize } from '../reports/summary.ts';
 import type { Scenario } from '../sim/model.ts';
 import { parseScenarioText } from '../scenarios/load.ts';
 import { renderRunTable } from '../reports/console-table.ts';
+import { handAvailability } from '../experiments/availability.ts';
+import { parseLayout } from '../sim/layout.ts';
+import { DistanceTables } from '../sim/distance-table.ts';
 
 // One robot, one pickup P (1:1), one drop D (8:1) 7 cells apart, parking H (1:2) under P,
 // a charger C (8:2) under D. Pickup 3 s, drop 2 s; 1 m cells at 1 m/s: ticks are seconds.
@@ -75,6 +78,27 @@ describe('one saturated robot with a deterministic battery (Groover cycle time x
     expect(summary.charging!.chargesPerHour.mean).toBeCloseTo(3600 / chargeCycleSeconds, 9);
     expect(summary.charging!.ranFlat).toBe(0);
     expect(summary.charging!.warning).toBeNull();
+  });
+});
+
+describe('the hand formula\'s availability factor (experiments/availability.ts)', () => {
+  it('on the one-robot lane: W = 0.705 x 3600 = 2538 s, detour D -> C -> P less D -> P = 1 + 8 - 7 = 2 s, charge (2538 + 2) / 4 = 635 s', () => {
+    const scenario: Scenario = {
+      ...makeScenario({ layout: lane, robots: 1, pickupSeconds: 3, dropSeconds: 2 }),
+      fleet: { robots: 1, battery: { runHours: 1, chargeHours: 0.25, chargeBelow: 0.195, chargeUpTo: 0.9 } },
+      faults: { breakdowns: { timeToFailure: { dist: 'exponential', mean: 7200 }, repair: { dist: 'exponential', mean: 1800 } } },
+    };
+    const layout = parseLayout(lane);
+    const hand = handAvailability(scenario, layout, new DistanceTables(layout));
+    expect(hand.workSecondsPerCharge).toBeCloseTo(2538, 9);
+    expect(hand.detourSeconds).toBe(2);
+    expect(hand.chargeSeconds).toBeCloseTo(635, 9);
+    expect(hand.charging).toBeCloseTo(2538 / 3175, 12);
+    // MTBF 2 h, MTTR 30 min: 0.8 (REFERENCES.md).
+    expect(hand.breakdowns).toBeCloseTo(0.8, 12);
+    expect(hand.total).toBeCloseTo(0.8 * (2538 / 3175), 12);
+    // Within 0.01% of the simulated cycle's 2546 / 3185 (the robot finishes its last task before charging).
+    expect(Math.abs(hand.charging - 2546 / 3185)).toBeLessThan(1e-4);
   });
 });
 
