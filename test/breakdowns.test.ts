@@ -15,7 +15,10 @@ import type { Scenario } from '../sim/model.ts';
 import { readFileSync } from 'node:fs';
 import { parseScenarioText } from '../scenarios/load.ts';
 import seedrandom from 'seedrandom';
-import { Phase, type World } from '../sim/world.ts';
+import { Phase, TaskState, World } from '../sim/world.ts';
+import { DeadlockDetector, WaitStatus } from '../sim/deadlock-detector.ts';
+import { DistanceTables } from '../sim/distance-table.ts';
+import { parseLayout } from '../sim/layout.ts';
 
 const demoLayout = parseScenarioText(readFileSync('scenarios/demo-sortation.yaml', 'utf8'), null).layoutText;
 
@@ -121,5 +124,50 @@ describe('a broken robot in the engine', () => {
     const pibt = failures('pibt');
     expect(pibt.reduce((s, v) => s + v, 0)).toBeGreaterThan(40);
     expect(failures('greedy-reactive')).toEqual(pibt);
+  });
+});
+
+describe('the deadlock detector and a broken robot (a wait-for chain ending at a robot that will go on is not circular: Coffman, Elphick & Shoshani 1971)', () => {
+  it('a head-on pair with one robot broken down is no deadlock while it waits for its repair; the same pair after the repair is one', () => {
+    // One-lane aisle: robot 0 at 2:1 heads east to 5:1, robot 1 at 3:1 heads west to 1:1.
+    const layout = parseLayout(['#######', '#.....#', '#######'].join('\n'));
+    const at = (x: number) => layout.width + x;
+    const world = new World(layout, 2);
+    [at(2), at(3)].forEach((cell, r) => {
+      world.robotCell[r] = cell;
+      world.occupant[cell] = r;
+    });
+    world.assign(0, world.addTask(0, at(5), at(5), -1, 1, 1, 0, TaskState.Open));
+    world.assign(1, world.addTask(0, at(1), at(1), -1, 1, 1, 0, TaskState.Open));
+    const detector = new DeadlockDetector(layout, new DistanceTables(layout), 2, 120, new Int32Array(layout.cellCount).fill(-1), 0, () => {});
+    const evaluate = (from: number, to: number) => {
+      for (let t = from; t < to; t++) {
+        world.currentTick = t;
+        detector.evaluate(t, world, world.robotCell, null, false);
+      }
+    };
+    // Robot 0 broken for 600 ticks (10 min, five times deadlockSeconds): robot 1 queues behind it.
+    world.robotBroken[0] = 1;
+    evaluate(0, 600);
+    expect(Array.from(detector.status)).toEqual([WaitStatus.Handling, WaitStatus.Blocked]);
+    // Repaired at 600 (the upkeep restarts its stall clock): now both wait on each other.
+    world.robotBroken[0] = 0;
+    detector.restart(0, 600);
+    detector.restart(1, 600);
+    evaluate(600, 900);
+    const episodes = detector.finish(900);
+    expect(episodes).toHaveLength(1);
+    expect(episodes[0]).toMatchObject({ kind: 'deadlock', detectTick: 600 + 120, members: [0, 1] });
+  });
+
+  it('a robot queued for a charger (no goal, not idle) stands like an idle robot', () => {
+    const layout = parseLayout(['#####', '#...#', '#####'].join('\n'));
+    const world = new World(layout, 1);
+    world.robotCell[0] = layout.width + 2;
+    world.occupant[layout.width + 2] = 0;
+    world.robotPhase[0] = Phase.WaitingForCharger;
+    const detector = new DeadlockDetector(layout, new DistanceTables(layout), 1, 120, new Int32Array(layout.cellCount).fill(-1), 0, () => {});
+    detector.evaluate(0, world, world.robotCell, null, false);
+    expect(detector.status[0]).toBe(WaitStatus.IdleStill);
   });
 });
