@@ -16,12 +16,16 @@
  * symmetric), and for a trace it is each task's own way back (exact on private lanes). In
  * round-trip mode (goods-to-person) the loaded part is shelf to station and back, handling
  * is lift + pick + set down, and the empty trip is from one shelf spot to the next.
+ * Per-station handling (`handling.stations`) enters as each station's mean weighted by its
+ * share of tasks; the availability factor comes from the battery and breakdowns
+ * (experiments/availability.ts: MTBF / (MTBF + MTTR) x the share of time not charging).
  * Congestion, station queues and dispatch choices are what this leaves out.
  */
 import type { HandlingSpec, PointChoice } from '../sim/model.ts';
 import { tickSecondsOf } from '../sim/model.ts';
 import type { SimulationSetup } from '../sim/engine.ts';
 import { cellLabel } from '../sim/layout.ts';
+import { handAvailability, type HandAvailability } from './availability.ts';
 
 export interface GrooverInputs {
   deliveriesPerHour: number;
@@ -98,6 +102,8 @@ export interface HandFormula extends GrooverResult {
   lowerBoundRobots: number;
   /** The busiest station's limit: it serves one robot at a time, so the rate cannot pass 3600 / (its share x its handling seconds). */
   stationLimit: { cell: string; kind: 'pickup' | 'drop'; share: number; handlingSeconds: number; tasksPerHour: number } | null;
+  /** The availability factor in AT and its two parts (1 without a battery or breakdowns). */
+  availability: HandAvailability;
 }
 
 /** Groover's estimate for a scenario at `tasksPerHour`, from its layout, demand and handling. */
@@ -108,8 +114,10 @@ export function handFormulaFor(setup: SimulationSetup, tasksPerHour: number): Ha
   const speed = scenario.units.robotSpeedMps;
   const demand = scenario.demand;
   const roundTrip = demand.mode === 'round-trip';
-  const pickupMean = meanHandlingSeconds(scenario.handling.pickupSeconds, tickSeconds);
-  const dropMean = meanHandlingSeconds(scenario.handling.dropSeconds, tickSeconds);
+  // Mean handling per station: its own override (handling.stations) or the default.
+  const stations = scenario.handling.stations;
+  const pickupMeanAt = (cell: number) => meanHandlingSeconds(stations?.get(cell)?.pickupSeconds ?? scenario.handling.pickupSeconds, tickSeconds);
+  const dropMeanAt = (cell: number) => meanHandlingSeconds(stations?.get(cell)?.dropSeconds ?? scenario.handling.dropSeconds, tickSeconds);
   const pickupCells = roundTrip ? layout.storage : layout.pickups;
 
   // Shares of pickups and drops, and the mean loaded and empty distances in cells.
@@ -152,8 +160,13 @@ export function handFormulaFor(setup: SimulationSetup, tasksPerHour: number): Ha
       for (let j = 0; j < pickupCells.length; j++) emptyCells += pickupShare[i] * pickupShare[j] * table[pickupCells[j]];
     }
   }
+  let pickupMean = 0;
+  for (let i = 0; i < pickupCells.length; i++) if (pickupShare[i] > 0) pickupMean += pickupShare[i] * pickupMeanAt(pickupCells[i]);
+  let dropMean = 0;
+  for (let j = 0; j < layout.drops.length; j++) if (dropShare[j] > 0) dropMean += dropShare[j] * dropMeanAt(layout.drops[j]);
   const loadSeconds = roundTrip ? 2 * pickupMean : pickupMean;
   const unloadSeconds = dropMean;
+  const availability = handAvailability(scenario, layout, distances);
   const loadedMeters = loadedCells * metersPerCell;
   const emptyMeters = emptyCells * metersPerCell;
   const result = grooverFleetSize({
@@ -162,21 +175,22 @@ export function handFormulaFor(setup: SimulationSetup, tasksPerHour: number): Ha
     unloadSeconds,
     loadedTravelSeconds: loadedMeters / speed,
     emptyTravelSeconds: emptyMeters / speed,
+    availability: availability.total,
   });
   const lowerBoundRobots = Math.max(1, Math.ceil((tasksPerHour * (loadSeconds + unloadSeconds + loadedMeters / speed)) / 3600 - 1e-9));
 
   // Stations (P and D points) serve one robot at a time.
   let stationLimit: HandFormula['stationLimit'] = null;
-  const consider = (cells: Int32Array, shares: Float64Array, seconds: number, kind: 'pickup' | 'drop') => {
-    if (!(seconds > 0)) return;
+  const consider = (cells: Int32Array, shares: Float64Array, secondsAt: (cell: number) => number, kind: 'pickup' | 'drop') => {
     for (let i = 0; i < cells.length; i++) {
-      if (shares[i] === 0) continue;
+      const seconds = secondsAt(cells[i]);
+      if (shares[i] === 0 || !(seconds > 0)) continue;
       const limit = 3600 / (shares[i] * seconds);
       if (stationLimit === null || limit < stationLimit.tasksPerHour) stationLimit = { cell: cellLabel(layout, cells[i]), kind, share: shares[i], handlingSeconds: seconds, tasksPerHour: limit };
     }
   };
-  if (!roundTrip) consider(layout.pickups, pickupShare, pickupMean, 'pickup');
-  consider(layout.drops, dropShare, dropMean, 'drop');
+  if (!roundTrip) consider(layout.pickups, pickupShare, pickupMeanAt, 'pickup');
+  consider(layout.drops, dropShare, dropMeanAt, 'drop');
   return {
     ...result,
     tasksPerHour,
@@ -188,5 +202,6 @@ export function handFormulaFor(setup: SimulationSetup, tasksPerHour: number): Ha
     emptyTravelSeconds: emptyMeters / speed,
     lowerBoundRobots,
     stationLimit,
+    availability,
   };
 }

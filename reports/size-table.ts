@@ -15,7 +15,17 @@ export interface SizeView {
   recommendedRobots: number | null;
   reason: string | null;
   handFormulaRobots: number;
-  handFormula: { cycleSeconds: number; loadSeconds: number; loadedTravelSeconds: number; unloadSeconds: number; emptyTravelSeconds: number; perRobotPerHour: number; robotsExact: number; lowerBoundRobots: number };
+  handFormula: {
+    cycleSeconds: number;
+    loadSeconds: number;
+    loadedTravelSeconds: number;
+    unloadSeconds: number;
+    emptyTravelSeconds: number;
+    perRobotPerHour: number;
+    robotsExact: number;
+    lowerBoundRobots: number;
+    availability?: { total: number; charging: number; breakdowns: number };
+  };
   knee: { robots: number; marginalPerAddedRobot: number; firstRobotsPerRobot: number; share: number } | null;
   congestionFrom: number | null;
   capacity: { robots: number; throughputPerHour: Interval; headroomPercent: number | null } | null;
@@ -44,6 +54,12 @@ export interface SizeView {
 const fixed = (v: number | null | undefined, digits = 0) => (v === null || v === undefined || !Number.isFinite(v) ? '-' : v.toFixed(digits));
 const withHalf = (i: Interval, digits = 0) => (Number.isFinite(i.mean) ? `${fixed(i.mean, digits)}${i.halfWidth === null ? '' : ` ± ${fixed(i.halfWidth, digits)}`}` : '-');
 
+/** ", availability 0.77 (charging 0.80 x breakdowns 0.96)" when the hand formula's AT has one below 1. */
+function availabilityText(a: SizeView['handFormula']['availability']): string {
+  if (!a || a.total >= 1) return '';
+  return `, available ${fixed(a.total * 100, 0)}% of the time (charging ${fixed(a.charging * 100, 0)}% x breakdowns ${fixed(a.breakdowns * 100, 0)}%)`;
+}
+
 export function renderSizeTable(d: SizeView): string {
   const out: string[] = [];
   const level = `${Math.round(d.confidence * 100)}%`;
@@ -57,7 +73,7 @@ export function renderSizeTable(d: SizeView): string {
   const h = d.handFormula;
   const cost = d.recommendedRobots === null ? '' : d.recommendedRobots > d.handFormulaRobots ? `; congestion, queues and dispatch cost ${d.recommendedRobots - d.handFormulaRobots} robots more` : d.recommendedRobots === d.handFormulaRobots ? '; the simulation agrees' : '; the simulation needs fewer (dispatch shortens empty trips)';
   out.push(
-    `hand formula (Groover): ${d.handFormulaRobots} robots (${fixed(h.robotsExact, 2)} exact): Tc = ${fixed(h.loadSeconds, 1)} s load + ${fixed(h.loadedTravelSeconds, 1)} s loaded + ${fixed(h.unloadSeconds, 1)} s unload + ${fixed(h.emptyTravelSeconds, 1)} s empty = ${fixed(h.cycleSeconds, 1)} s, ${fixed(h.perRobotPerHour, 1)} tasks/h per robot${cost}`,
+    `hand formula (Groover): ${d.handFormulaRobots} robots (${fixed(h.robotsExact, 2)} exact): Tc = ${fixed(h.loadSeconds, 1)} s load + ${fixed(h.loadedTravelSeconds, 1)} s loaded + ${fixed(h.unloadSeconds, 1)} s unload + ${fixed(h.emptyTravelSeconds, 1)} s empty = ${fixed(h.cycleSeconds, 1)} s, ${fixed(h.perRobotPerHour, 1)} tasks/h per robot${availabilityText(h.availability)}${cost}`,
   );
   if (d.capacity) {
     out.push(`capacity of ${d.capacity.robots} robots (saturated demand): ${withHalf(d.capacity.throughputPerHour)} tasks/h, headroom ${fixed(d.capacity.headroomPercent, 0)}% over the target`);
