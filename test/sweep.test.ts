@@ -255,7 +255,7 @@ describe('result folders are all-or-nothing (run --out)', () => {
     const first = fleetwright(['run', smallHall, '--out', out, '--json']);
     expect(first.status, first.stderr).toBe(0);
     const written = readdirSync(out).sort();
-    expect(written).toEqual(['cells.csv', 'context.json', 'lead-times.csv', 'replications.csv', 'stations.csv', 'summary.json', 'throughput.csv']);
+    expect(written).toEqual(['cells.csv', 'context.json', 'lead-time-split.csv', 'lead-times.csv', 'replications.csv', 'stations.csv', 'summary.json', 'throughput.csv']);
     const before = Object.fromEntries(written.filter((n) => n !== 'stations.csv').map((n) => [n, readFileSync(path.join(out, n), 'utf8')]));
     rmSync(path.join(out, 'stations.csv'));
     mkdirSync(path.join(out, 'stations.csv'));
