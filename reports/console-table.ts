@@ -57,6 +57,10 @@ export function describeStability(summary: RunSummary): string {
   const g = summary.backlogGrowthPerHour;
   const range = g.low !== null && g.high !== null ? `, ${pct}% interval ${signed(g.low)} .. ${signed(g.high)}` : '';
   if (summary.stable === null) return 'backlog: not assessed (saturated demand keeps an artificial pool of tasks: a capacity run)';
+  if (summary.stable && summary.stabilityVerdict === 'undetermined') {
+    const material = summary.stability.materialGrowthPerHour;
+    return `backlog: undetermined (trend ${Number.isFinite(g.mean) ? signed(g.mean) : '-'} tasks/h after the warm-up${range}; the interval cannot rule out growth above ${Number.isFinite(material) ? material.toFixed(1) : '-'} tasks/h, 1% of throughput): run more replications or longer before trusting lead times`;
+  }
   if (summary.stable) {
     return `backlog: bounded (trend ${Number.isFinite(g.mean) ? signed(g.mean) : '-'} tasks/h after the warm-up${range})`;
   }

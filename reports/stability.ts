@@ -46,8 +46,17 @@ export interface ReplicationTrend {
   stable: boolean;
 }
 
+/**
+ * `stable`: the growth interval lies below the material growth (a bounded backlog is shown);
+ * `unstable`: material, significant growth; `undetermined`: neither (the interval is too wide
+ * to tell: more replications or longer runs decide); null for capacity runs.
+ */
+export type StabilityVerdict = 'stable' | 'unstable' | 'undetermined' | null;
+
 export interface StabilityReport {
+  /** False only when growth is shown (see `verdict`); true otherwise; null for capacity runs. */
   stable: boolean | null;
+  verdict: StabilityVerdict;
   backlogGrowthPerHour: Interval;
   /** Growth (tasks/h) above which a significant trend counts as unstable. */
   materialGrowthPerHour: number;
@@ -108,7 +117,7 @@ export function assessStability(scenario: Scenario, records: ReplicationRecord[]
   const secondsPerInterval = first.metrics.intervalTicks * first.tickSeconds;
   const base = { fromSeconds: window.from * secondsPerInterval, toSeconds: window.to * secondsPerInterval };
   if (scenario.demand.kind === 'saturated') {
-    return { stable: null, backlogGrowthPerHour: nullInterval(), materialGrowthPerHour: NaN, ...base, perReplication: [] };
+    return { stable: null, verdict: null, backlogGrowthPerHour: nullInterval(), materialGrowthPerHour: NaN, ...base, perReplication: [] };
   }
   const perReplication = records.map((record, i) => replicationTrend(record, window.from, window.to, throughputs[i], confidence));
   const growths = perReplication.map((t) => t.growthPerHour).filter((g) => Number.isFinite(g));
@@ -116,7 +125,7 @@ export function assessStability(scenario: Scenario, records: ReplicationRecord[]
   const meanThroughput = finiteThroughputs.length > 0 ? finiteThroughputs.reduce((s, v) => s + v, 0) / finiteThroughputs.length : 0;
   const materialGrowthPerHour = materialGrowthShare * meanThroughput;
   if (growths.length === 0) {
-    return { stable: true, backlogGrowthPerHour: nullInterval(), materialGrowthPerHour, ...base, perReplication };
+    return { stable: true, verdict: 'undetermined', backlogGrowthPerHour: nullInterval(), materialGrowthPerHour, ...base, perReplication };
   }
   let pooled: Interval;
   if (records.length === 1) {
@@ -127,5 +136,8 @@ export function assessStability(scenario: Scenario, records: ReplicationRecord[]
   }
   const pooledUnstable = pooled.mean > materialGrowthPerHour && pooled.low !== null && pooled.low > 0;
   const everyReplicationUnstable = records.length > 1 && perReplication.every((t) => !t.stable);
-  return { stable: !(pooledUnstable || everyReplicationUnstable), backlogGrowthPerHour: pooled, materialGrowthPerHour, ...base, perReplication };
+  const unstable = pooledUnstable || everyReplicationUnstable;
+  const shownBounded = pooled.high !== null && pooled.high <= materialGrowthPerHour;
+  const verdict: StabilityVerdict = unstable ? 'unstable' : shownBounded ? 'stable' : 'undetermined';
+  return { stable: !unstable, verdict, backlogGrowthPerHour: pooled, materialGrowthPerHour, ...base, perReplication };
 }

@@ -83,6 +83,12 @@ export interface RunSummary {
   tasksInSystem: Interval;
   /** Bounded backlog (no material, significant growth of tasks in system after the warm-up); null for saturated (capacity) runs. */
   stable: boolean | null;
+  /**
+   * 'stable' when the growth interval lies below the material growth (bounded backlog shown),
+   * 'unstable' when material growth is significant, 'undetermined' when the interval is too
+   * wide to tell (then `stable` is true but unproven), null for capacity runs.
+   */
+  stabilityVerdict: 'stable' | 'unstable' | 'undetermined' | null;
   /** Trend of tasks in system after the warm-up, tasks per hour. */
   backlogGrowthPerHour: Interval;
   stability: StabilitySummary;
@@ -344,6 +350,7 @@ export function summarize(scenario: Scenario, records: ReplicationRecord[], wall
     ...(realism.hourly ? { hourly: realism.hourly } : {}),
     tasksInSystem: inSystem,
     stable: stability.stable,
+    stabilityVerdict: stability.verdict,
     backlogGrowthPerHour: stability.backlogGrowthPerHour,
     stability: {
       materialGrowthPerHour: stability.materialGrowthPerHour,

@@ -170,3 +170,58 @@ describe('saturated (capacity) runs', () => {
     for (const w of perReplication) expect(w.stable).toBeNull();
   });
 });
+
+describe('three-way verdict: a bounded backlog must be shown, not assumed', () => {
+  // Material growth is 1% of throughput (reports/stability.ts). "stable" needs the growth
+  // interval's upper end below it; "unstable" needs significant material growth; anything
+  // else is "undetermined" (the run is too short or too few to tell), whatever the mean.
+  it('the demo hall at its own demand over 5 x 4 h is shown bounded', () => {
+    const scenario = loadScenarioFile('scenarios/demo-sortation.yaml', {});
+    const { summary } = summarize(scenario, runReplications(scenario), 0);
+    expect(summary.stabilityVerdict).toBe('stable');
+    expect(summary.backlogGrowthPerHour.high!).toBeLessThanOrEqual(summary.stability.materialGrowthPerHour);
+  });
+
+  it('a stable M/D/1 queue over 2 x 2 h cannot be told apart from slow growth: undetermined', () => {
+    const scenario = makeScenario({
+      layout: lane,
+      robots: 1,
+      pickupSeconds: 5,
+      dropSeconds: 5,
+      demand: { kind: 'poisson', mode: 'delivery', tasksPerHour: 30, profile: null, pickups: { kind: 'uniform' }, drops: { kind: 'uniform' } },
+      hours: 2,
+      replications: 2,
+      warmup: 0,
+      sampleSeconds: 300,
+    });
+    const { summary } = summarize(scenario, runReplications(scenario), 0);
+    expect(summary.stable).toBe(true);
+    expect(summary.stabilityVerdict).toBe('undetermined');
+    expect(summary.backlogGrowthPerHour.high!).toBeGreaterThan(summary.stability.materialGrowthPerHour);
+  });
+
+  it('an overloaded run is unstable, and a capacity run has no verdict', () => {
+    expect(overloadedVerdict()).toBe('unstable');
+    const scenario = makeScenario({ layout: lane, robots: 1, pickupSeconds: 5, dropSeconds: 5, hours: 1, replications: 2 });
+    expect(summarize(scenario, runReplications(scenario), 0).summary.stabilityVerdict).toBeNull();
+  });
+});
+
+function overloadedVerdict() {
+  return singleStationVerdict(78);
+}
+
+function singleStationVerdict(tasksPerHour: number) {
+  const scenario = makeScenario({
+    layout: lane,
+    robots: 1,
+    pickupSeconds: 5,
+    dropSeconds: 5,
+    demand: { kind: 'poisson', mode: 'delivery', tasksPerHour, profile: null, pickups: { kind: 'uniform' }, drops: { kind: 'uniform' } },
+    hours: 8,
+    replications: 3,
+    warmup: 'auto',
+    sampleSeconds: 300,
+  });
+  return summarize(scenario, runReplications(scenario), 0).summary.stabilityVerdict;
+}
