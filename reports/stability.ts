@@ -120,24 +120,38 @@ export function assessStability(scenario: Scenario, records: ReplicationRecord[]
     return { stable: null, verdict: null, backlogGrowthPerHour: nullInterval(), materialGrowthPerHour: NaN, ...base, perReplication: [] };
   }
   const perReplication = records.map((record, i) => replicationTrend(record, window.from, window.to, throughputs[i], confidence));
+  return { ...pooledStability(perReplication, throughputs, confidence), ...base, perReplication };
+}
+
+/** The trend of one replication as far as the verdict over replications reads it (a sweep's run lines carry these). */
+export type TrendVerdict = Pick<ReplicationTrend, 'growthPerHour' | 'low' | 'high' | 'stable'>;
+
+/**
+ * The verdict over replications from each replication's own trend and delivered rate
+ * (tasks per hour): the rule above, used by `run` and, over a parameter point's run lines,
+ * by the sweep tables.
+ */
+export function pooledStability(
+  perReplication: readonly TrendVerdict[],
+  throughputs: readonly number[],
+  confidence: number,
+): { stable: boolean; verdict: Exclude<StabilityVerdict, null>; backlogGrowthPerHour: Interval; materialGrowthPerHour: number } {
   const growths = perReplication.map((t) => t.growthPerHour).filter((g) => Number.isFinite(g));
   const finiteThroughputs = throughputs.filter((v) => Number.isFinite(v));
   const meanThroughput = finiteThroughputs.length > 0 ? finiteThroughputs.reduce((s, v) => s + v, 0) / finiteThroughputs.length : 0;
   const materialGrowthPerHour = materialGrowthShare * meanThroughput;
-  if (growths.length === 0) {
-    return { stable: true, verdict: 'undetermined', backlogGrowthPerHour: nullInterval(), materialGrowthPerHour, ...base, perReplication };
-  }
+  if (growths.length === 0) return { stable: true, verdict: 'undetermined', backlogGrowthPerHour: nullInterval(), materialGrowthPerHour };
   let pooled: Interval;
-  if (records.length === 1) {
+  if (perReplication.length === 1) {
     const t = perReplication[0];
     pooled = { mean: t.growthPerHour, halfWidth: t.low === null ? null : (t.high! - t.low) / 2, low: t.low, high: t.high, n: 1 };
   } else {
     pooled = intervalOf(growths, confidence);
   }
   const pooledUnstable = pooled.mean > materialGrowthPerHour && pooled.low !== null && pooled.low > 0;
-  const everyReplicationUnstable = records.length > 1 && perReplication.every((t) => !t.stable);
+  const everyReplicationUnstable = perReplication.length > 1 && perReplication.every((t) => !t.stable);
   const unstable = pooledUnstable || everyReplicationUnstable;
   const shownBounded = pooled.high !== null && pooled.high <= materialGrowthPerHour;
   const verdict: StabilityVerdict = unstable ? 'unstable' : shownBounded ? 'stable' : 'undetermined';
-  return { stable: !unstable, verdict, backlogGrowthPerHour: pooled, materialGrowthPerHour, ...base, perReplication };
+  return { stable: !unstable, verdict, backlogGrowthPerHour: pooled, materialGrowthPerHour };
 }

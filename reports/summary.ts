@@ -11,7 +11,7 @@
  * their lag-1 correlation is above 0.2, flagged unreliable if it stays so at 10), centred
  * on the whole run's value. Deadlock episodes and robot-hours lost are counts per
  * replication: with one replication, the count and no interval. Fractions are clipped to
- * [0, 1] and counts, rates and times to >= 0 (reports/stats/clip-interval.ts).
+ * [0, 1] and counts, rates and times to >= 0 (the rules of reports/interval-rules.ts, shared with the sweep tables).
  *
  * Stability (reports/stability.ts): every Poisson and trace run says whether its backlog
  * is bounded; an unstable run's lead times count the ages of tasks still open and get no
@@ -22,7 +22,8 @@ import type { ReplicationRecord } from '../sim/engine.ts';
 import { RunError } from '../sim/errors.ts';
 import { checkWellFormed, parseLayout } from '../sim/layout.ts';
 import { restCellsForFleet, withRestCells } from '../sim/rest-cells.ts';
-import { batchMeansInterval, batchMeansRule, clipInterval, intervalOf, mserCut, type Interval } from './stats/index.ts';
+import { batchMeansInterval, batchMeansRule, mserCut, type Interval } from './stats/index.ts';
+import { bounded, noInterval, replicationInterval, unstableLeadTime, type Bounds } from './interval-rules.ts';
 import { windowMetrics, type WindowMetrics } from './window-metrics.ts';
 import { assessStability, type StabilityReport } from './stability.ts';
 import { safetyNote } from './safety.ts';
@@ -197,16 +198,6 @@ export function warmupCut(scenario: Scenario, records: ReplicationRecord[]): War
   return { method: 'mser-5', seconds: cut.cutObservations * intervalSeconds, intervals: cut.cutObservations, tooShort: cut.tooShort, note: null };
 }
 
-type Bounds = 'fraction' | 'nonNegative' | 'none';
-
-function bounded(interval: Interval, bounds: Bounds): Interval {
-  if (bounds === 'fraction') return clipInterval(interval, 0, 1);
-  if (bounds === 'nonNegative') return clipInterval(interval, 0, Infinity);
-  return interval;
-}
-
-const noInterval = (mean: number, n: number): Interval => ({ mean, halfWidth: null, low: null, high: null, n });
-
 /**
  * The batches of a single replication's post-warm-up run at the finest level of the
  * batch-means check: up to `batchMeansRule.initialBatches` equal batches of whole intervals,
@@ -270,11 +261,7 @@ export function summarize(scenario: Scenario, records: ReplicationRecord[], wall
 
   /** Over replications (t), or over batch means of the one replication, centred on its whole-window value. */
   const interval = (name: string, pick: (w: WindowMetrics) => number, bounds: Bounds): Interval => {
-    if (intervalMethod === 'replications') {
-      const values = perReplication.map(pick).filter((v) => Number.isFinite(v));
-      if (values.length === 0) return noInterval(NaN, 0);
-      return bounded(intervalOf(values, confidence), bounds);
-    }
+    if (intervalMethod === 'replications') return replicationInterval(perReplication.map(pick), confidence, bounds);
     const whole = pick(perReplication[0]);
     const values = batches.map(pick).filter((v) => Number.isFinite(v));
     if (!Number.isFinite(whole)) return noInterval(NaN, 0);
@@ -294,16 +281,10 @@ export function summarize(scenario: Scenario, records: ReplicationRecord[], wall
     return bounded(result, bounds);
   };
   /** Counts per replication: never per batch, so one replication gives the count and no interval. */
-  const perReplicationInterval = (pick: (w: WindowMetrics) => number, bounds: Bounds): Interval => {
-    const values = perReplication.map(pick).filter((v) => Number.isFinite(v));
-    if (values.length === 0) return noInterval(NaN, 0);
-    return bounded(intervalOf(values, confidence), bounds);
-  };
+  const perReplicationInterval = (pick: (w: WindowMetrics) => number, bounds: Bounds): Interval => replicationInterval(perReplication.map(pick), confidence, bounds);
   /** Lead times: an unstable run's are lower bounds and get no interval. */
   const leadInterval = (name: string, pick: (w: WindowMetrics) => number): Interval => {
-    if (!unstable) return interval(name, pick, 'nonNegative');
-    const values = perReplication.map(pick).filter((v) => Number.isFinite(v));
-    return noInterval(mean(values), values.length);
+    return unstable ? unstableLeadTime(perReplication.map(pick)) : interval(name, pick, 'nonNegative');
   };
 
   const layout = parseLayout(scenario.layoutText);
@@ -314,7 +295,7 @@ export function summarize(scenario: Scenario, records: ReplicationRecord[], wall
   const heldBack = records.map((r) => r.policyCounters.heldBackTaskSeconds);
   // A whole-run rate per replication (the policy counts over the whole run): replications only, never batches.
   const policyLimits = heldBack.every((v) => v !== undefined)
-    ? { heldBackTaskSecondsPerHour: bounded(intervalOf(heldBack.map((v) => v / scenario.run.hours), confidence), 'nonNegative') }
+    ? { heldBackTaskSecondsPerHour: replicationInterval(heldBack.map((v) => v! / scenario.run.hours), confidence, 'nonNegative') }
     : null;
   const stations = stationRows(layout, records, perReplication);
   const sum = (pick: (r: ReplicationRecord) => number) => records.reduce((s, r) => s + pick(r), 0);
@@ -442,10 +423,6 @@ export function summarize(scenario: Scenario, records: ReplicationRecord[], wall
     },
   };
   return { summary, perReplication, cutIntervals: warmup.intervals };
-}
-
-function mean(values: number[]): number {
-  return values.length > 0 ? values.reduce((s, v) => s + v, 0) / values.length : NaN;
 }
 
 /** JSON with NaN and infinities as null, for the one document `--json` prints. */

@@ -1,48 +1,18 @@
 /**
  * runs.csv and summary.csv of a sweep (csv-stringify): one row per run with the run's own
- * figures, and one row per parameter point with Student-t intervals over its replications
- * (each replication's post-warm-up mean is one observation). Built row by row from run
- * lines, so a sweep of any length is written with bounded memory.
+ * figures, and one row per parameter point with the intervals of reports/sweep-point.ts
+ * (Student t over its replications, clipped to each figure's range, no lead-time interval
+ * at an unstable point: the run summary's rules). Built row by row from run lines, so a
+ * sweep of any length is written with bounded memory.
  *
  * Spreadsheet safety: a cell written `17:10` is read by spreadsheet programs as a clock
  * time, so cells are written `x17:y10` in these files (README, "Sweep outputs").
  */
 import { stringify } from 'csv-stringify/sync';
-import { intervalOf } from './stats/index.ts';
+import { figureValue, sweepFigures, type PointAccumulator, type RunLine } from './sweep-point.ts';
 
-/** One line of runs.jsonl, as far as the tables read it. */
-export interface RunLine {
-  id: string;
-  run: number;
-  point: number;
-  replication: number;
-  parameters: Record<string, unknown>;
-  summary: Record<string, any>;
-}
-
-type Pick = (summary: Record<string, any>) => number | undefined;
-const meanOf = (field: string): Pick => (s) => s[field]?.mean;
-
-/** The figures of a run summary that the tables carry, in column order. Fields a summary lacks stay empty. */
-const figures: [string, Pick][] = [
-  ['throughputPerHour', meanOf('throughputPerHour')],
-  ['leadTimeSeconds', meanOf('leadTimeSeconds')],
-  ['leadTimeP50Seconds', meanOf('leadTimeP50Seconds')],
-  ['leadTimeP95Seconds', meanOf('leadTimeP95Seconds')],
-  ['tasksInSystem', meanOf('tasksInSystem')],
-  ['backlogGrowthPerHour', meanOf('backlogGrowthPerHour')],
-  ['busyRobots', meanOf('busyRobots')],
-  ['stationIdleFraction', meanOf('stationIdleFraction')],
-  ['stationStarvedFraction', meanOf('stationStarvedFraction')],
-  ['robotLoadedFraction', (s) => s.robotTime?.loaded?.mean],
-  ['robotEmptyFraction', (s) => s.robotTime?.empty?.mean],
-  ['robotHandlingFraction', (s) => s.robotTime?.handling?.mean],
-  ['robotWaitingFraction', (s) => s.robotTime?.waiting?.mean],
-  ['robotParkedFraction', (s) => s.robotTime?.parked?.mean],
-  ['deadlocks', meanOf('deadlocks')],
-  ['deadlockRobotHoursLost', meanOf('deadlockRobotHoursLost')],
-  ['warmupSeconds', (s) => s.warmupSeconds],
-];
+export type { RunLine } from './sweep-point.ts';
+export { PointAccumulator } from './sweep-point.ts';
 
 const round = (v: number | null | undefined): number | string => (typeof v === 'number' && Number.isFinite(v) ? Number(v.toFixed(6)) : '');
 
@@ -59,12 +29,12 @@ export function spreadsheetValue(value: unknown): string | number {
   return JSON.stringify(value, (_key, v) => (v !== null && typeof v === 'object' && !Array.isArray(v) ? Object.fromEntries(Object.entries(v).map(([k, x]) => [String(spreadsheetValue(k)), x])) : v));
 }
 
-function stableText(summary: Record<string, any>): string {
-  return summary.stable === true ? 'true' : summary.stable === false ? 'false' : '';
+function stableText(value: unknown): string {
+  return value === true ? 'true' : value === false ? 'false' : '';
 }
 
 export function runsCsvHeader(parameters: readonly string[]): string {
-  return stringify([['run', 'id', 'point', 'replication', ...parameters, 'stable', ...figures.map(([name]) => name), 'collisions', 'released', 'delivered']]);
+  return stringify([['run', 'id', 'point', 'replication', ...parameters, 'stable', 'leadTimeIncludesOpenTasks', ...sweepFigures.map((f) => f.name), 'collisions', 'released', 'delivered']]);
 }
 
 export function runsCsvRow(line: RunLine, parameters: readonly string[]): string {
@@ -76,8 +46,9 @@ export function runsCsvRow(line: RunLine, parameters: readonly string[]): string
       line.point,
       line.replication,
       ...parameters.map((p) => spreadsheetValue(line.parameters[p])),
-      stableText(s),
-      ...figures.map(([, pick]) => round(pick(s))),
+      stableText(s.stable),
+      stableText(s.leadTimeIncludesOpenTasks),
+      ...sweepFigures.map((f) => round(figureValue(f, s))),
       s.collisions ?? '',
       s.tasks?.released ?? '',
       s.tasks?.delivered ?? '',
@@ -85,49 +56,29 @@ export function runsCsvRow(line: RunLine, parameters: readonly string[]): string
   ]);
 }
 
-/** Accumulates one parameter point's replications for summary.csv (numbers only). */
-export class PointAccumulator {
-  readonly values: number[][] = figures.map(() => []);
-  runs = 0;
-  stableRuns = 0;
-  judgedRuns = 0;
-  collisions = 0;
-  constructor(
-    readonly point: number,
-    readonly parameters: Record<string, unknown>,
-  ) {}
-
-  add(line: RunLine): void {
-    this.runs++;
-    figures.forEach(([, pick], i) => {
-      const v = pick(line.summary);
-      if (typeof v === 'number' && Number.isFinite(v)) this.values[i].push(v);
-    });
-    if (line.summary.stable === true || line.summary.stable === false) {
-      this.judgedRuns++;
-      if (line.summary.stable) this.stableRuns++;
-    }
-    this.collisions += line.summary.collisions ?? 0;
-  }
-}
-
 export function summaryCsvHeader(parameters: readonly string[]): string {
-  const columns = ['point', ...parameters, 'replications', 'stableShare'];
-  for (const [name] of figures) columns.push(`${name}Mean`, `${name}HalfWidth`, `${name}Low`, `${name}High`);
+  const columns = ['point', ...parameters, 'replications', 'stable', 'stableShare', 'leadTimeIsLowerBound'];
+  for (const { name } of sweepFigures) columns.push(`${name}Mean`, `${name}HalfWidth`, `${name}Low`, `${name}High`);
   columns.push('collisions');
   return stringify([columns]);
 }
 
+/** One row per parameter point: the intervals of reports/sweep-point.ts (the run summary's rules). */
 export function summaryCsvRow(point: PointAccumulator, parameters: readonly string[], confidence: number): string {
-  const row: (string | number)[] = [point.point, ...parameters.map((p) => spreadsheetValue(point.parameters[p])), point.runs, point.judgedRuns > 0 ? round(point.stableRuns / point.judgedRuns) : ''];
-  for (const values of point.values) {
-    if (values.length === 0) {
-      row.push('', '', '', '');
-      continue;
-    }
-    const interval = intervalOf(values, confidence);
-    row.push(round(interval.mean), round(interval.halfWidth), round(interval.low), round(interval.high));
+  const summary = point.summary(confidence);
+  const row: (string | number)[] = [
+    summary.point,
+    ...parameters.map((p) => spreadsheetValue(summary.parameters[p])),
+    summary.replications,
+    stableText(summary.stable),
+    summary.stableShare === null ? '' : round(summary.stableShare),
+    stableText(summary.leadTimeIsLowerBound),
+  ];
+  for (const { name } of sweepFigures) {
+    const interval = summary.figures[name];
+    if (interval === null) row.push('', '', '', '');
+    else row.push(round(interval.mean), round(interval.halfWidth), round(interval.low), round(interval.high));
   }
-  row.push(point.collisions);
+  row.push(summary.collisions);
   return stringify([row]);
 }
