@@ -1,12 +1,16 @@
 /**
  * Joining sweep folders (shards of one plan, from `--shard` or an array job) into one:
  * the same runs.jsonl, runs.csv and summary.csv as the whole plan run in one place, byte
- * for byte outside `timing`. Refused (InputError, exit 2): folders of different plans; a
+ * for byte outside `timing`, and a context.json with the merge's command. Refused (InputError, exit 2): folders of different plans; a
  * run of the plan that no folder holds, or one that two folders hold, unless `partial`
  * (then missing runs are left out and the first copy of a doubled run is kept).
  */
+import { existsSync, readFileSync } from 'node:fs';
 import path from 'node:path';
 import { InputError } from '../sim/errors.ts';
+import { commandLine, type SweepContext } from '../reports/run-context.ts';
+import { toJson } from '../reports/summary.ts';
+import type { OutputFile } from './output-folder.ts';
 import { RunJournal, type LineLocation } from './run-journal.ts';
 import { readPlanDocument, sweepFiles, writeSweepOutputs, type PlanDocument } from './sweep.ts';
 import type { PlannedRun } from './sweep-plan.ts';
@@ -18,7 +22,7 @@ export interface MergeResult {
   folders: number;
 }
 
-export function mergeSweeps(folders: readonly string[], outDirectory: string, partial: boolean): MergeResult {
+export function mergeSweeps(folders: readonly string[], outDirectory: string, partial: boolean, argv: readonly string[] = []): MergeResult {
   if (folders.length === 0) throw new InputError('merge: got no folders, expected one or more sweep output folders');
   const documents: { folder: string; plan: PlanDocument }[] = [];
   for (const folder of folders) {
@@ -71,6 +75,30 @@ export function mergeSweeps(folders: readonly string[], outDirectory: string, pa
     );
   }
   const plan: PlanDocument = { ...first.plan, shard: null };
-  writeSweepOutputs(outDirectory, plan.vary, plan.points, runs, located, plan.confidence, '--out', [{ name: sweepFiles.plan, content: `${JSON.stringify(plan)}\n` }]);
+  const extra: OutputFile[] = [{ name: sweepFiles.plan, content: `${JSON.stringify(plan)}\n` }];
+  const context = mergedContext(documents.map((d) => d.folder), argv);
+  if (context !== null) extra.push({ name: sweepFiles.context, content: `${toJson(context)}\n` });
+  writeSweepOutputs(outDirectory, plan.vary, plan.points, runs, located, plan.confidence, '--out', extra);
   return { runs: runs.length - missing.length, missing: missing.length, doubled, folders: documents.length };
+}
+
+/**
+ * The merged folder's context.json: the shards' context (the same plan, scenario and version
+ * in each) with the merge's own command, no shard, and each folder's command in the order
+ * given; null when no folder has one (shards written before sweeps wrote it).
+ */
+function mergedContext(folders: readonly string[], argv: readonly string[]): SweepContext | null {
+  const contexts = folders.map((folder) => {
+    const file = path.join(folder, sweepFiles.context);
+    if (!existsSync(file)) return null;
+    try {
+      return JSON.parse(readFileSync(file, 'utf8')) as SweepContext;
+    } catch (error) {
+      throw new InputError(`merge: ${JSON.stringify(file)} is not valid JSON (${(error as Error).message.split('\n')[0]}), expected the context.json fleetwright sweep wrote`);
+    }
+  });
+  const first = contexts.find((c) => c !== null);
+  if (!first) return null;
+  const { shardCommands: _shards, ...rest } = first;
+  return { ...rest, command: commandLine(argv), shard: null, shardCommands: contexts.map((c) => c?.command ?? '(no context.json)') };
 }

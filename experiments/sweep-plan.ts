@@ -42,6 +42,8 @@ export interface PlannedRun {
 export interface SweepPlan {
   file: string;
   scenarioPath: string;
+  /** The plan's scenario as its file has it, before any `vary` value (context.json). */
+  scenario: Scenario;
   vary: SweepVary[];
   replications: number;
   points: SweepPoint[];
@@ -185,7 +187,7 @@ export function loadSweepPlan(file: string): SweepPlan {
     }
   }
   const hash = sha256(canonicalJson({ resultFormat, runs: runs.map((r) => r.id), vary: vary.map((v) => v.path) }));
-  return { file, scenarioPath, vary, replications, points, runs, hash };
+  return { file, scenarioPath, scenario: base, vary, replications, points, runs, hash };
 }
 
 function describe(value: unknown): string {

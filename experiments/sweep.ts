@@ -5,8 +5,9 @@
  *               of another plan (or shard) is refused rather than mixed;
  *   runs.jsonl  the journal (experiments/run-journal.ts): each finished run appended and
  *               fsynced; rerunning the same command skips the runs already there;
- *   at the end, runs.jsonl rewritten in plan order, runs.csv and summary.csv, swapped in
- *               together (experiments/output-folder.ts).
+ *   at the end, runs.jsonl rewritten in plan order, runs.csv, summary.csv and context.json
+ *               (command, plan and scenario hashes, version: reports/run-context.ts),
+ *               swapped in together (experiments/output-folder.ts).
  *
  * Runs go to a worker-thread pool, at most two per worker in flight, so memory does not
  * grow with the plan; each run is summarized to its line in the worker that ran it. A run line
@@ -18,6 +19,8 @@ import { closeSync, existsSync, openSync, readFileSync, renameSync, rmSync, writ
 import os from 'node:os';
 import path from 'node:path';
 import { InputError } from '../sim/errors.ts';
+import { sweepContext } from '../reports/run-context.ts';
+import { toJson } from '../reports/summary.ts';
 import { PointAccumulator, runsCsvHeader, runsCsvRow, summaryCsvHeader, summaryCsvRow, type RunLine } from '../reports/sweep-tables.ts';
 import { ensureOutputFolder, writeDurable, writeOutputFolder, type OutputFile } from './output-folder.ts';
 import { createPool } from './pool.ts';
@@ -35,6 +38,8 @@ export interface SweepOptions {
   workers: number;
   shard: Shard;
   progress?: SweepProgress;
+  /** The command's arguments (after `fleetwright`), for context.json. */
+  argv?: readonly string[];
 }
 
 export interface SweepResult {
@@ -58,7 +63,7 @@ export interface PlanDocument {
   runs: [id: string, point: number, replication: number][];
 }
 
-export const sweepFiles = { plan: 'plan.json', runs: 'runs.jsonl', runsCsv: 'runs.csv', summaryCsv: 'summary.csv' } as const;
+export const sweepFiles = { plan: 'plan.json', runs: 'runs.jsonl', runsCsv: 'runs.csv', summaryCsv: 'summary.csv', context: 'context.json' } as const;
 
 export function planDocument(plan: SweepPlan, shard: { index: number; count: number } | null): PlanDocument {
   return {
@@ -169,7 +174,8 @@ export async function runSweep(plan: SweepPlan, options: SweepOptions): Promise<
     } finally {
       journal.close();
     }
-    writeSweepOutputs(directory, plan.vary.map((v) => v.path), wanted.points, selected, journal.done, wanted.confidence, '--out');
+    const context = sweepContext(plan.scenario, options.argv ?? [], { sweepFile: plan.file, planHash: plan.hash, vary: wanted.vary, replications: plan.replications, runs: plan.runs.length, shard: wanted.shard });
+    writeSweepOutputs(directory, wanted.vary, wanted.points, selected, journal.done, wanted.confidence, '--out', [{ name: sweepFiles.context, content: `${toJson(context)}\n` }]);
     return { total: selected.length, resumed, ran: todo.length, droppedBytes: journal.droppedBytes };
   } finally {
     unlock();

@@ -63,3 +63,39 @@ export function runContext(scenario: Scenario, argv: readonly string[]): RunCont
     scenario: canonical({ ...content, demand }) as Record<string, unknown>,
   };
 }
+
+/**
+ * `context.json` of a sweep folder: the run context of the plan's scenario as the file has
+ * it (before any `vary` value; each point's own scenario is in its run lines' ids), the
+ * plan's file name and hash, what it varies, and the shard this folder holds. Nothing in it
+ * depends on the clock, the machine or the folder it is written to, so every shard of a
+ * plan writes the same context apart from `command` and `shard`, and a merge writes the
+ * shards' context with its own command and the shards' commands in shard order.
+ */
+export interface SweepContext extends RunContext {
+  sweepFile: string;
+  /** The plan's hash (plan.json `planHash`: every run id in order, and the varied paths). */
+  planSha256: string;
+  vary: string[];
+  replications: number;
+  runs: number;
+  shard: { index: number; count: number } | null;
+  /** A merged folder: the command that wrote each shard folder, in the order given to merge. */
+  shardCommands?: string[];
+}
+
+export function sweepContext(
+  scenario: Scenario,
+  argv: readonly string[],
+  plan: { sweepFile: string; planHash: string; vary: string[]; replications: number; runs: number; shard: { index: number; count: number } | null },
+): SweepContext {
+  return {
+    ...runContext(scenario, argv),
+    sweepFile: path.basename(plan.sweepFile),
+    planSha256: plan.planHash,
+    vary: plan.vary,
+    replications: plan.replications,
+    runs: plan.runs,
+    shard: plan.shard,
+  };
+}

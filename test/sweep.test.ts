@@ -9,6 +9,7 @@ import { spawn, spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
+import { parse } from 'csv-parse/sync';
 import seedrandom from 'seedrandom';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { shardFrom } from '../experiments/shard.ts';
@@ -168,12 +169,83 @@ describe('one worker, two workers and merged shards give the same results', () =
     expect(rows[1][column('replications')]).toBe('3');
   });
 
+  it('summary.csv intervals are clipped to what each figure can take, as in the run summary', () => {
+    const rows: Record<string, string>[] = parse(readFileSync(path.join(root, 'one', 'summary.csv'), 'utf8'), { columns: true });
+    const lines = readFileSync(path.join(root, 'one', 'runs.jsonl'), 'utf8').trimEnd().split('\n').map((l) => JSON.parse(l));
+    // Shares lie in [0, 1]; counts, rates and times at or above 0 (README "What the outputs mean").
+    const fractions = ['stationStarvedFraction', 'stationIdleFraction', 'robotParkedFraction', 'robotWaitingFraction', 'parkedWhileTasksOpenFraction'];
+    const nonNegative = ['throughputPerHour', 'tasksInSystem', 'busyRobots', 'deadlocks', 'warmupSeconds'];
+    // Where each figure sits in a run line's summary (the run --json document).
+    const pick: Record<string, (summary: any) => number> = {
+      robotParkedFraction: (summary) => summary.robotTime.parked.mean,
+      robotWaitingFraction: (summary) => summary.robotTime.waiting.mean,
+      warmupSeconds: (summary) => summary.warmupSeconds,
+    };
+    for (const name of [...fractions, ...nonNegative]) pick[name] ??= (summary) => summary[name].mean;
+    let clipped = 0;
+    for (const row of rows) {
+      expect(row.stable).toBe('true');
+      for (const [name, upper] of [...fractions.map((f) => [f, 1] as const), ...nonNegative.map((f) => [f, Infinity] as const)]) {
+        const values = lines.filter((l) => l.point === Number(row.point)).map((l) => pick[name](l.summary));
+        expect(values).toHaveLength(3);
+        const mean = values.reduce((s, v) => s + v, 0) / 3;
+        const sd = Math.sqrt(values.reduce((s, v) => s + (v - mean) ** 2, 0) / 2);
+        // Student t, 2 degrees of freedom, 95%: 4.303 (NIST/SEMATECH e-Handbook, table 1.3.6.7.2).
+        const halfWidth = (4.303 * sd) / Math.sqrt(3);
+        if (mean - halfWidth < -1e-3 || mean + halfWidth > upper + 1e-3) clipped++;
+        expect(Number(row[`${name}Mean`]), `${name} at point ${row.point}`).toBeCloseTo(mean, 4);
+        expect(Number(row[`${name}HalfWidth`]), `${name} at point ${row.point}`).toBeCloseTo(halfWidth, 1);
+        expect(Number(row[`${name}Low`]), `${name} at point ${row.point}`).toBeCloseTo(Math.max(0, mean - halfWidth), 1);
+        expect(Number(row[`${name}High`]), `${name} at point ${row.point}`).toBeCloseTo(Math.min(upper, mean + halfWidth), 1);
+      }
+      // No column other than the backlog trend (which may fall) goes below 0.
+      for (const [column, value] of Object.entries(row)) if (column.endsWith('Low') && column !== 'backlogGrowthPerHourLow' && value !== '') expect(Number(value), column).toBeGreaterThanOrEqual(0);
+    }
+    // The plan is chosen so that plain Student-t ends leave the range somewhere (else this checks nothing).
+    expect(clipped).toBeGreaterThan(0);
+  });
+
+  it('context.json names the command, the plan and scenario hashes and the version; shards and the merge agree', () => {
+    const context = (folder: string) => JSON.parse(readFileSync(path.join(root, folder, 'context.json'), 'utf8'));
+    const one = context('one');
+    const planDocument = JSON.parse(readFileSync(path.join(root, 'one', 'plan.json'), 'utf8'));
+    expect(one.command).toBe(`fleetwright sweep ${plan} --out ${path.join(root, 'one')} --workers 1`);
+    expect(one.planSha256).toBe(planDocument.planHash);
+    expect(one.planSha256).toMatch(/^[0-9a-f]{64}$/);
+    expect(one.sweepFile).toBe('plan.yaml');
+    expect(one.vary).toEqual(['fleet.robots', 'demand.tasksPerHour']);
+    expect([one.replications, one.runs, one.shard]).toEqual([3, 12, null]);
+    expect(one.fleetwrightVersion).toBe(JSON.parse(readFileSync(path.join(repositoryRoot, 'package.json'), 'utf8')).version);
+    // The scenario hash is the scenario file's own, as `run --out` hashes the same file without overrides.
+    const run = path.join(fresh('context-run'), 'out');
+    expect(fleetwright(['run', smallHall, '--out', run]).status).toBe(0);
+    expect(one.scenarioSha256).toBe(JSON.parse(readFileSync(path.join(run, 'context.json'), 'utf8')).scenarioSha256);
+    // Every shard writes the same context apart from its command and shard; the merge keeps it, with its own command.
+    const { command: _c, shard: _s, ...shared } = one;
+    for (let shard = 0; shard < 3; shard++) {
+      const { command, shard: which, ...rest } = context(`shard-${shard}`);
+      expect(rest).toEqual(shared);
+      expect(which).toEqual({ index: shard, count: 3 });
+      expect(command).toContain(`--shard ${shard}/3`);
+    }
+    const merged = context('merged');
+    const { command, shard, shardCommands, ...rest } = merged;
+    expect(rest).toEqual(shared);
+    expect(shard).toBeNull();
+    expect(command).toBe(`fleetwright merge ${path.join(root, 'shard-0')} ${path.join(root, 'shard-1')} ${path.join(root, 'shard-2')} --out ${path.join(root, 'merged')}`);
+    expect(shardCommands).toEqual([0, 1, 2].map((i) => context(`shard-${i}`).command));
+    // Nothing in it depends on the clock: a second run of the same command writes the same bytes.
+    expect(readFileSync(path.join(root, 'two', 'context.json'), 'utf8')).toBe(readFileSync(path.join(root, 'one', 'context.json'), 'utf8').replace('--workers 1', '--workers 2').replace(`${path.sep}one`, `${path.sep}two`));
+  });
+
   it('rerunning a finished sweep runs nothing and changes nothing', () => {
     const before = readFileSync(path.join(root, 'one', 'runs.jsonl'), 'utf8');
+    const context = readFileSync(path.join(root, 'one', 'context.json'), 'utf8');
     const result = fleetwright(['sweep', plan, '--out', path.join(root, 'one'), '--workers', '1']);
     expect(result.status, result.stderr).toBe(0);
     expect(result.stderr).toMatch(/12 runs \(0 run now, 12 already done\)/);
     expect(readFileSync(path.join(root, 'one', 'runs.jsonl'), 'utf8')).toBe(before);
+    expect(readFileSync(path.join(root, 'one', 'context.json'), 'utf8')).toBe(context);
   });
 
   it('a changed plan in an old folder is refused, and the folder is left as it was', () => {
@@ -207,6 +279,31 @@ describe('one worker, two workers and merged shards give the same results', () =
     expect(partial.stderr).toMatch(/8 runs from 3 folders \(4 missing, 4 doubled, first kept\)/);
     const kept = readFileSync(path.join(root, 'partial', 'runs.jsonl'), 'utf8').trimEnd().split('\n').map((l) => JSON.parse(l).run);
     expect(kept).toEqual([0, 1, 3, 4, 6, 7, 9, 10]);
+  });
+});
+
+describe('an unstable point in summary.csv', () => {
+  it('is flagged, and its lead times are lower bounds without an interval; a stable point keeps its interval', () => {
+    // One robot on the small hall delivers about 190 tasks/h (test/size.test.ts, hand formula): 900 offered is an overload, 60 is not.
+    const plan = writePlan(planText.replace('fleet.robots: [1, 2]', 'fleet.robots: [1]').replace('[120, 240]', '[60, 900]\n  run.hours: [0.5]'));
+    const out = path.join(path.dirname(plan), 'out');
+    const result = fleetwright(['sweep', plan, '--out', out, '--workers', '2']);
+    expect(result.status, result.stderr).toBe(0);
+    const rows: Record<string, string>[] = parse(readFileSync(path.join(out, 'summary.csv'), 'utf8'), { columns: true });
+    const lines = readFileSync(path.join(out, 'runs.jsonl'), 'utf8').trimEnd().split('\n').map((l) => JSON.parse(l));
+    const [light, heavy] = rows;
+    expect([light['demand.tasksPerHour'], heavy['demand.tasksPerHour']]).toEqual(['60', '900']);
+    // Every replication of the overload is unstable on its own, so the point is (reports/stability.ts: "or when every replication on its own is").
+    expect(lines.filter((l) => l.point === 1).map((l) => l.summary.stable)).toEqual([false, false, false]);
+    expect([heavy.stable, heavy.stableShare, heavy.leadTimeIsLowerBound]).toEqual(['false', '0', 'true']);
+    const leads = lines.filter((l) => l.point === 1).map((l) => l.summary.leadTimeSeconds.mean as number);
+    expect(Number(heavy.leadTimeSecondsMean)).toBeCloseTo(leads.reduce((s, v) => s + v, 0) / 3, 4);
+    for (const figure of ['leadTimeSeconds', 'leadTimeP50Seconds', 'leadTimeP95Seconds']) expect([heavy[`${figure}HalfWidth`], heavy[`${figure}Low`], heavy[`${figure}High`]]).toEqual(['', '', '']);
+    // Throughput of the overload still has its interval (it is what one robot delivers), and the backlog grows.
+    expect(Number(heavy.throughputPerHourHalfWidth)).toBeGreaterThan(0);
+    expect(Number(heavy.backlogGrowthPerHourLow)).toBeGreaterThan(0);
+    expect([light.stable, light.leadTimeIsLowerBound]).toEqual(['true', 'false']);
+    expect(Number(light.leadTimeSecondsHalfWidth)).toBeGreaterThan(0);
   });
 });
 

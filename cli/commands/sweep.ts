@@ -16,11 +16,12 @@ export async function sweepCommand(planPath: string, options: { out: string; wor
       outDirectory: options.out,
       workers,
       shard,
+      argv: process.argv.slice(2),
       progress: (done, total, resumed) => progress.update(total > 0 ? done / total : 1, `${done}/${total} runs${resumed > 0 ? ` (${resumed} resumed)` : ''}`),
     });
   } finally {
     progress.stop();
   }
   const resumedText = result.resumed > 0 ? `, ${result.resumed} already done` : '';
-  process.stderr.write(`sweep: ${result.total} runs (${result.ran} run now${resumedText}) of ${plan.runs.length} in the plan, ${shard.source}; results in ${options.out}/ (runs.jsonl, runs.csv, summary.csv)\n`);
+  process.stderr.write(`sweep: ${result.total} runs (${result.ran} run now${resumedText}) of ${plan.runs.length} in the plan, ${shard.source}; results in ${options.out}/ (runs.jsonl, runs.csv, summary.csv, context.json; fleetwright report ${options.out} draws them)\n`);
 }
