@@ -8,7 +8,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { converter, differenceCiede2000, filterDeficiencyDeuter, filterDeficiencyProt, filterDeficiencyTrit, parse, type Color } from 'culori';
-import { heatColours, policyColours, robotTimeColours, stateColours } from '../reports/html/palette.ts';
+import { heatColours, policyColours, robotTimeColours, seriesColours, stateColours } from '../reports/html/palette.ts';
 
 const difference = differenceCiede2000();
 const lab = converter('lab');
@@ -36,6 +36,7 @@ describe('palette', () => {
   for (const [name, colours] of [
     ['robot states', Object.values(stateColours)],
     ['policies', [...policyColours]],
+    ['chart series', [...seriesColours]],
     ['heat classes (neighbours)', [...heatColours]],
   ] as const) {
     for (const [vision, simulate] of Object.entries(visions)) {

@@ -29,6 +29,13 @@ export const robotTimeColours = [stateColours.loaded, stateColours.empty, stateC
 /** Policies in a comparison (Okabe-Ito, black and yellow left out: black is for text, yellow is faint on white). */
 export const policyColours = ['#0072b2', '#d55e00', '#009e73', '#cc79a7', '#e69f00', '#56b4e9'] as const;
 
+/**
+ * Lines of a chart with several series (sweep and size curves): Okabe-Ito without
+ * vermillion, which marks targets and recommendations, and without yellow (faint on white);
+ * dark grey as the sixth.
+ */
+export const seriesColours = ['#0072b2', '#e69f00', '#009e73', '#cc79a7', '#56b4e9', '#555555'] as const;
+
 /** Viridis at 5 evenly spaced stops (memory), light to dark. */
 export const heatColours = ['#fde725', '#5ec962', '#21918c', '#3b528b', '#440154'] as const;
 

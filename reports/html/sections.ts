@@ -1,7 +1,7 @@
 /** Pieces every report page shares: the heading, headline cards, scenario facts, safety note and provenance footer. */
 import { escapeHtml } from './escape.ts';
 import { safetyNote } from '../safety.ts';
-import type { RunContext } from '../run-context.ts';
+import type { RunContext, SweepContext } from '../run-context.ts';
 import type { Json } from './results-folder.ts';
 
 export function heading(title: string, subtitle: string): string {
@@ -48,14 +48,18 @@ export function demandText(scenario: Json | undefined): string {
   return String(d.kind);
 }
 
-export function provenance(context: RunContext | null, folderName: string): string {
+export function provenance(context: (RunContext & Partial<SweepContext>) | null, folderName: string): string {
   if (!context) {
     return `<footer id="provenance"><p>Made by fleetwright from the results folder ${escapeHtml(folderName)}, which holds no context.json: the command, scenario hash and version that produced it are unknown.</p></footer>`;
   }
-  return `<footer id="provenance"><dl class="facts">
-<dt>command</dt><dd><code data-field="command">${escapeHtml(context.command)}</code></dd>
-<dt>scenario file</dt><dd>${escapeHtml(context.scenarioFile ?? '(built in code)')}</dd>
-<dt>scenario SHA-256</dt><dd><code data-field="scenarioSha256">${escapeHtml(context.scenarioSha256)}</code> (of the scenario with every command-line override applied)</dd>
-<dt>fleetwright</dt><dd data-field="fleetwrightVersion">${escapeHtml(context.fleetwrightVersion)}</dd>
-</dl></footer>`;
+  const sweep = typeof context.planSha256 === 'string';
+  const rows = [
+    `<dt>command</dt><dd><code data-field="command">${escapeHtml(context.command)}</code></dd>`,
+    ...(Array.isArray(context.shardCommands) ? [`<dt>merged from</dt><dd>${context.shardCommands.map((c) => `<code>${escapeHtml(c)}</code>`).join('<br>')}</dd>`] : []),
+    ...(sweep ? [`<dt>sweep plan</dt><dd>${escapeHtml(context.sweepFile ?? '')}, SHA-256 <code data-field="planSha256">${escapeHtml(context.planSha256)}</code> (of its run ids, which hash every point's resolved scenario)</dd>`] : []),
+    `<dt>scenario file</dt><dd>${escapeHtml(context.scenarioFile ?? '(built in code)')}</dd>`,
+    `<dt>scenario SHA-256</dt><dd><code data-field="scenarioSha256">${escapeHtml(context.scenarioSha256)}</code> (${sweep ? 'of the scenario as its file has it, before the plan’s values' : 'of the scenario with every command-line override applied'})</dd>`,
+    `<dt>fleetwright</dt><dd data-field="fleetwrightVersion">${escapeHtml(context.fleetwrightVersion)}</dd>`,
+  ];
+  return `<footer id="provenance"><dl class="facts">\n${rows.join('\n')}\n</dl></footer>`;
 }
