@@ -12,9 +12,10 @@ import path from 'node:path';
 import { parse } from 'csv-parse/sync';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { fleetwright, repositoryRoot } from './helpers-cli.ts';
-import { artifact, launchChromium, openFile, type Browser } from './browser/chromium.ts';
+import { artifact, launchChromium, openFile, type Browser, type PageWatch } from './browser/chromium.ts';
 
 const folder = mkdtempSync(path.join(os.tmpdir(), 'fleetwright-browser-report-'));
+const smallHall = path.join(repositoryRoot, 'test', 'fixtures', 'cli-small-hall.yaml');
 let browser: Browser;
 
 function ok(result: { status: number | null; stderr: string }): void {
@@ -29,6 +30,15 @@ beforeAll(async () => {
   ok(fleetwright('report', path.join(folder, 'run'), '--html', path.join(folder, 'run.html')));
   ok(fleetwright('compare', 'scenarios/demo-sortation.yaml', '--policies', 'token-passing,greedy-reactive', '--robots', '12', '--hours', '0.25', '--reps', '2', '--out', path.join(folder, 'compare')));
   ok(fleetwright('report', path.join(folder, 'compare'), '--html', path.join(folder, 'compare.html')));
+  // Real size and sweep outputs on the small hall (one robot there delivers about 190 tasks/h: test/size.test.ts).
+  ok(fleetwright('size', smallHall, '--target', '200', '--hours', '0.5', '--reps', '2', '--out', path.join(folder, 'size')));
+  ok(fleetwright('report', path.join(folder, 'size'), '--html', path.join(folder, 'size.html')));
+  writeFileSync(path.join(folder, 'plan.yaml'), `scenario: ${JSON.stringify(smallHall)}\nvary:\n  fleet.robots: [1, 2, 3]\n  demand.tasksPerHour: [120, 900]\n  run.hours: [0.5]\nreplications: 2\n`);
+  ok(fleetwright('sweep', path.join(folder, 'plan.yaml'), '--out', path.join(folder, 'sweep')));
+  ok(fleetwright('report', path.join(folder, 'sweep'), '--html', path.join(folder, 'sweep.html')));
+  writeFileSync(path.join(folder, 'demand-plan.yaml'), `scenario: ${JSON.stringify(smallHall)}\nvary:\n  fleet.robots: [1]\n  demand.tasksPerHour: [60, 120, 300]\nreplications: 2\n`);
+  ok(fleetwright('sweep', path.join(folder, 'demand-plan.yaml'), '--out', path.join(folder, 'demand-sweep')));
+  ok(fleetwright('report', path.join(folder, 'demand-sweep'), '--html', path.join(folder, 'demand-sweep.html')));
 });
 
 afterAll(async () => {
@@ -74,11 +84,71 @@ describe('run report in Chromium', () => {
     const intervals = Object.values(summary.robotTime as Record<string, { low: number | null }>).filter((i) => i.low !== null).length;
     expect(await count('#robot-time .mark-mean-bar rect')).toBe(5);
     expect(await count('#robot-time .mark-interval line')).toBe(intervals);
-    // Stations: a utilisation bar and an idle-while-work-waits bar per station (all 48 fit).
-    expect(await count('#stations .mark-utilisation-bar rect')).toBe(48);
-    expect(await count('#stations .mark-idle-while-work-waits-bar rect')).toBe(48);
+    // Stations, by group: each pickup's time split in four stacked parts and its queue bar; one column per drop.
+    const pickups = summary.stations.filter((st: { group: string }) => st.group === 'pickup');
+    const drops = summary.stations.filter((st: { group: string }) => st.group === 'drop');
+    expect([pickups.length, drops.length]).toEqual([8, 40]);
+    expect(await count('#stations .mark-station-segment rect')).toBe(4 * pickups.length);
+    expect(await count('#stations .mark-queue-bar rect')).toBe(pickups.length);
+    expect(await count('#drops .mark-drop-bar rect')).toBe(drops.length);
     // A data table under every chart.
-    expect(await count('figure.chart')).toBe(await count('figure.chart table.data'));
+    expect(await count('figure.chart')).toBeGreaterThan(5);
+    expect(await count('figure.chart')).toBe(await count('figure.chart:has(table.data)'));
+    await watch.page.close();
+  });
+
+  it('splits pickup stations as the engine does: busy, no robot assigned, robot on its way, with their queue', async () => {
+    const watch = await openFile(browser, path.join(folder, 'run.html'));
+    const summary = JSON.parse(readFileSync(path.join(folder, 'run', 'summary.json'), 'utf8'));
+    const stations = csv(path.join(folder, 'run', 'stations.csv'));
+    // The table lists pickups by most time without a robot; each row's numbers are those of stations.csv.
+    const rows = await watch.page.locator('#stations table.data tbody tr').evaluateAll((trs) => trs.map((tr) => Array.from(tr.children, (c) => (c as { textContent: string | null }).textContent ?? '')));
+    expect(rows).toHaveLength(8);
+    const pct = (v: string) => `${(Number(v) * 100).toFixed(1)}%`;
+    for (const [station, busy, noRobot, travelling, queue] of rows) {
+      const row = stations.find((r) => `pickup ${r.cell}` === station)!;
+      expect(row, station).toBeDefined();
+      expect([busy, noRobot, travelling, queue]).toEqual([pct(row.utilisation), pct(row.noRobotFraction), pct(row.travellingFraction), Number(row.queueSecondsPerHour).toFixed(1)]);
+    }
+    const noRobot = rows.map((r) => Number(r[2].replace('%', '')));
+    expect([...noRobot].sort((a, b) => b - a)).toEqual(noRobot);
+    expect(summary.stationGroups.pickup.noRobotWhileWorkWaitsFraction.mean).toBeGreaterThan(0);
+    // The four parts of each bar fill the whole axis (100%): read back from the drawn rectangles.
+    const widths = await watch.page.locator('#stations .mark-station-segment rect').evaluateAll((rects) => rects.map((r) => (r as unknown as { getBBox(): { y: number; width: number } }).getBBox()).map((b) => ({ y: Math.round(b.y), width: b.width })));
+    const byRow = new Map<number, number>();
+    for (const w of widths) byRow.set(w.y, (byRow.get(w.y) ?? 0) + w.width);
+    const totals = [...byRow.values()];
+    expect(totals).toHaveLength(8);
+    for (const total of totals) expect(total).toBeCloseTo(totals[0], 0);
+    await watch.page.close();
+  });
+
+  it('the lead-time chart keeps its axis labels whole and its mean and p95 labels apart', async () => {
+    const watch = await openFile(browser, path.join(folder, 'run.html'));
+    type Box = { x: number; y: number; width: number; height: number };
+    const boxes = (selector: string) => watch.page.locator(selector).evaluateAll((nodes) => nodes.map((n) => n.getBoundingClientRect()).map((r) => ({ x: r.x, y: r.y, width: r.width, height: r.height })));
+    const [svg] = (await boxes('#lead-time .plot svg')) as Box[];
+    const ticks = (await boxes('#lead-time .plot svg [aria-label="y-axis tick label"] text')) as Box[];
+    expect(ticks.length).toBeGreaterThan(2);
+    for (const tick of ticks) expect(tick.x).toBeGreaterThanOrEqual(svg.x);
+    const labels = (await boxes('#lead-time .mark-lead-time-label text')) as Box[];
+    expect(labels).toHaveLength(2);
+    const [a, b] = labels;
+    const overlap = a.x < b.x + b.width && b.x < a.x + a.width && a.y < b.y + b.height && b.y < a.y + a.height;
+    expect(overlap).toBe(false);
+    await watch.page.close();
+  });
+
+  it('prints on A4 without running past the page width, and the run page is not longer than 6 pages', async () => {
+    const watch = await openFile(browser, path.join(folder, 'run.html'));
+    // A4 (210 mm) less the print style's 12 mm margins: 186 mm = 703 CSS pixels.
+    await watch.page.setViewportSize({ width: 703, height: 1000 });
+    await watch.page.emulateMedia({ media: 'print' });
+    expect(await watch.page.evaluate('document.documentElement.scrollWidth')).toBeLessThanOrEqual(703);
+    const pdf = await watch.page.pdf({ format: 'A4', printBackground: true });
+    const pages = (pdf.toString('latin1').match(/\/Type\s*\/Page[^s]/g) ?? []).length;
+    expect(pages).toBeGreaterThan(1);
+    expect(pages).toBeLessThanOrEqual(6);
     await watch.page.close();
   });
 
@@ -89,6 +159,14 @@ describe('run report in Chromium', () => {
     expect(await shown('throughputPerHour.mean')).toBe(summary.throughputPerHour.mean.toFixed(1));
     expect(await shown('leadTimeSeconds.mean')).toBe(summary.leadTimeSeconds.mean.toFixed(1));
     expect(await shown('collisions')).toBe(String(summary.collisions));
+    expect(await shown('busyRobots.mean')).toBe(summary.busyRobots.mean.toFixed(1));
+    expect(await shown('stable')).toBe(summary.stable ? 'yes' : 'NO');
+    // What limits the fleet: the figures the engine and policy report, one line each.
+    const limits = (await watch.page.locator('#section-limits + dl.facts').textContent()) ?? '';
+    expect(limits).toContain(`${(summary.parkedWhileTasksOpenFraction.mean * 100).toFixed(1)}`);
+    expect(limits).toContain(`${summary.policyLimits.heldBackTaskSecondsPerHour.mean.toFixed(0)} ±`);
+    expect(limits).toContain(`pickups ${(summary.demandMixGap.pickup * 100).toFixed(1)}%`);
+    expect(limits).toContain(`${summary.deadlocks.mean.toFixed(2)}`);
     const context = JSON.parse(readFileSync(path.join(folder, 'run', 'context.json'), 'utf8'));
     expect(await shown('scenarioSha256')).toBe(context.scenarioSha256);
     expect(await shown('command')).toBe(context.command);
@@ -122,38 +200,97 @@ describe('compare report in Chromium', () => {
 });
 
 describe('size and sweep pages in Chromium', () => {
-  // Hand-written documents in the shapes of DESIGN §7 (size --json) and §8 (runs.jsonl); numbers invented.
-  it('size: one dot per fleet size, an interval bar where one exists, the target line and the recommendation', async () => {
-    const results = path.join(folder, 'size');
-    mkdirSync(results);
-    const size = JSON.parse(readFileSync(path.join(repositoryRoot, 'test', 'fixtures', 'size-result.json'), 'utf8'));
-    writeFileSync(path.join(results, 'size.json'), JSON.stringify(size));
-    ok(fleetwright('report', results, '--html', path.join(folder, 'size.html')));
+  type Row = Record<string, string>;
+  const tickTexts = (watch: PageWatch, id: string) => watch.page.locator(`#${id} svg [aria-label="x-axis tick label"] text`).allTextContents();
+
+  it('size: both curves (at the target and capacity) with their intervals, the target line, the hand-formula fleet, the knee and the recommendation', async () => {
+    const size = JSON.parse(readFileSync(path.join(folder, 'size', 'size.json'), 'utf8'));
     const watch = await openFile(browser, path.join(folder, 'size.html'));
     expect(watch.consoleErrors).toEqual([]);
     expect(watch.requests).toEqual([]);
     const count = (selector: string) => watch.page.locator(selector).count();
-    expect(await count('#fleet-size .mark-throughput-mean circle')).toBe(size.curve.length);
-    expect(await count('#fleet-size .mark-throughput-interval line')).toBe(size.curve.filter((c: { throughputPerHour: { low: number | null } }) => c.throughputPerHour.low !== null).length);
-    expect(await count('#fleet-size .mark-target-line line')).toBe(1);
-    expect(await count('#fleet-size .mark-recommended circle')).toBe(1);
-    expect((await watch.page.locator('[data-field="recommendedRobots"]').textContent())?.trim()).toBe(String(size.recommendedRobots));
-    expect((await watch.page.locator('[data-field="handFormulaRobots"]').textContent())?.trim()).toBe(String(size.handFormulaRobots));
+    const all = [...size.curve, ...size.capacityCurve];
+    expect(size.capacityCurve.length).toBeGreaterThan(1);
+    // Capacity points have no stability verdict (filled); points at the target are hollow when their backlog grew.
+    const unstable = size.curve.filter((c: { stable: boolean | null }) => c.stable === false).length;
+    expect(await count('#fleet-size .mark-point-stable > *')).toBe(all.length - unstable);
+    expect(await count('#fleet-size .mark-point-unstable > *')).toBe(unstable);
+    expect(await count('#fleet-size .mark-throughput-interval > *')).toBe(all.filter((c: { throughputPerHour: { low: number | null } }) => c.throughputPerHour.low !== null).length);
+    expect(await count('#fleet-size .mark-target-line > *')).toBe(1);
+    expect(await count('#fleet-size .mark-hand-formula > *')).toBe(1);
+    expect(await count('#fleet-size .mark-knee > *')).toBe(size.knee === null ? 0 : 1);
+    expect(size.knee).not.toBeNull();
+    expect(await count('#fleet-size .mark-recommended > *')).toBe(1);
+    // Whole robots on the axis.
+    const ticks = await tickTexts(watch, 'fleet-size');
+    expect(ticks.length).toBeGreaterThan(1);
+    for (const t of ticks) expect(t).toMatch(/^\d+$/);
+    const shown = async (field: string) => (await watch.page.locator(`[data-field="${field}"]`).first().textContent())?.trim();
+    expect(await shown('recommendedRobots')).toBe(String(size.recommendedRobots));
+    expect(await shown('handFormulaRobots')).toBe(String(size.handFormulaRobots));
+    expect(await shown('capacity.throughputPerHour.mean')).toBe(size.capacity.throughputPerHour.mean.toFixed(0));
+    expect(await shown('knee')).toBe(String(size.knee.robots));
+    // One table row per fleet of each curve.
+    expect(await count('#fleet-size table.data tbody tr')).toBe(all.length);
     await watch.page.screenshot({ path: artifact('report-size.png'), fullPage: true });
     await watch.page.close();
   });
 
-  it('sweep: one point per parameter combination, one line per policy', async () => {
-    const results = path.join(folder, 'sweep');
-    mkdirSync(results);
-    const lines = readFileSync(path.join(repositoryRoot, 'test', 'fixtures', 'sweep-runs.jsonl'), 'utf8');
-    writeFileSync(path.join(results, 'runs.jsonl'), lines);
-    ok(fleetwright('report', results, '--html', path.join(folder, 'sweep.html')));
+  it('sweep: throughput against robots, one line per rate, stable and unstable points as summary.csv says', async () => {
+    const rows: Row[] = parse(readFileSync(path.join(folder, 'sweep', 'summary.csv'), 'utf8'), { columns: true });
+    const context = JSON.parse(readFileSync(path.join(folder, 'sweep', 'context.json'), 'utf8'));
     const watch = await openFile(browser, path.join(folder, 'sweep.html'));
     expect(watch.consoleErrors).toEqual([]);
+    expect(watch.pageErrors).toEqual([]);
+    expect(watch.requests).toEqual([]);
     const count = (selector: string) => watch.page.locator(selector).count();
-    expect(await count('#sweep-curve .mark-throughput-mean circle')).toBe(lines.trim().split('\n').length);
-    expect(await count('h2#points + table.data tbody tr')).toBe(6);
+    expect(rows).toHaveLength(6);
+    const unstable = rows.filter((r) => r.stable === 'false');
+    // 900 tasks/h overloads one robot (about 190 tasks/h): the plan has both kinds of point.
+    expect(unstable.length).toBeGreaterThan(0);
+    expect(unstable.length).toBeLessThan(rows.length);
+    expect(await count('#sweep-curve .mark-point-stable > *')).toBe(rows.length - unstable.length);
+    expect(await count('#sweep-curve .mark-point-unstable > *')).toBe(unstable.length);
+    expect(await count('#sweep-curve .mark-throughput-interval > *')).toBe(rows.filter((r) => r.throughputPerHourLow !== '').length);
+    const ticks = await tickTexts(watch, 'sweep-curve');
+    expect(ticks).toEqual(['1', '2', '3']);
+    // The table under the chart: per point its flag and lead time as summary.csv has them.
+    const table = await watch.page.locator('#sweep-curve table.data tbody tr').evaluateAll((trs) => trs.map((tr) => Array.from(tr.children, (c) => (c as { textContent: string | null }).textContent ?? '')));
+    expect(table).toHaveLength(rows.length);
+    table.forEach((cells, i) => {
+      const [robots, rate, replications, throughput, lead, stable] = cells;
+      const row = rows[i];
+      expect([robots, rate, replications]).toEqual([row['fleet.robots'], row['demand.tasksPerHour'], row.replications]);
+      expect(throughput).toBe(`${Number(row.throughputPerHourMean).toFixed(1)} ± ${Number(row.throughputPerHourHalfWidth).toFixed(1)}`);
+      if (row.stable === 'false') {
+        expect(stable).toMatch(/^NO: backlog grew/);
+        expect(lead).toBe(`≥ ${Number(row.leadTimeSecondsMean).toFixed(1)} (lower bound)`);
+      } else {
+        expect(stable).toMatch(/^yes/);
+        expect(lead).toBe(`${Number(row.leadTimeSecondsMean).toFixed(1)} ± ${Number(row.leadTimeSecondsHalfWidth).toFixed(1)}`);
+      }
+      expect(stable).toContain(`(${Math.round(Number(row.stableShare) * 2)} of 2 stable alone)`);
+    });
+    // Lead time: stable points with an interval, unstable ones as lower bounds.
+    expect(await count('#sweep-lead-time .mark-lead-mean > *')).toBe(rows.length - unstable.length);
+    expect(await count('#sweep-lead-time .mark-lead-lower-bound > *')).toBe(unstable.length);
+    // Provenance from context.json.
+    const shown = async (field: string) => (await watch.page.locator(`[data-field="${field}"]`).first().textContent())?.trim();
+    expect(await shown('planSha256')).toBe(context.planSha256);
+    expect(await shown('command')).toBe(context.command);
+    expect(await shown('scenarioSha256')).toBe(context.scenarioSha256);
+    expect(await watch.page.locator('#provenance').textContent()).not.toContain('unknown');
+    await watch.page.screenshot({ path: artifact('report-sweep.png'), fullPage: true });
+    await watch.page.close();
+  });
+
+  it('sweep over demand only: throughput against offered demand with the offered = delivered line', async () => {
+    const rows: Row[] = parse(readFileSync(path.join(folder, 'demand-sweep', 'summary.csv'), 'utf8'), { columns: true });
+    const watch = await openFile(browser, path.join(folder, 'demand-sweep.html'));
+    const count = (selector: string) => watch.page.locator(selector).count();
+    expect(await count('#sweep-curve .mark-offered-line > *')).toBe(1);
+    expect(await count('#sweep-curve .mark-point-stable > *, #sweep-curve .mark-point-unstable > *')).toBe(rows.length);
+    expect(await tickTexts(watch, 'sweep-curve')).toEqual(['60', '120', '300']);
     await watch.page.close();
   });
 });

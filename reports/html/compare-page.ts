@@ -9,7 +9,7 @@ import { chartFigure, dataTable } from './plot.ts';
 import { intervalBars } from './charts/interval-bars.ts';
 import { differenceChart } from './charts/differences.ts';
 import { robotTimeStack } from './charts/robot-time-stack.ts';
-import { stationBars, stationRows } from './charts/station-bars.ts';
+import { dropRows, dropStationChart, pickupRows, pickupStationChart } from './charts/station-charts.ts';
 import { leadTimeChart } from './charts/lead-time-histogram.ts';
 import { policyColours } from './palette.ts';
 import { duration, intervalText } from './format.ts';
@@ -60,7 +60,7 @@ export function comparePage(results: ResultsFolder): { title: string; body: stri
     ]),
   );
 
-  parts.push('<h2 id="per-policy">Each policy with its interval</h2>');
+  parts.push('<h2 id="section-per-policy">Each policy with its interval</h2>');
   const perPolicy = (id: string, key: string, heading: string, axisLabel: string, digits: number, unit: string, scale = 1) => {
     const chart = intervalBars(
       summaries.map((s, i) => ({ label: String(s.policy), interval: s[key], colour: colour(i) })),
@@ -72,7 +72,7 @@ export function comparePage(results: ResultsFolder): { title: string; body: stri
   parts.push(perPolicy('policy-lead-time', 'leadTimeSeconds', 'Mean lead time per policy', 'lead time (s)', 1, 's'));
   parts.push(perPolicy('policy-starved', 'stationStarvedFraction', 'Stations idle while work waited, per policy', 'share of time (%)', 2, '%', 100));
 
-  parts.push('<h2 id="differences">Differences between policies</h2>');
+  parts.push('<h2 id="section-differences">Differences between policies</h2>');
   const differences: Json[] = doc.differences ?? [];
   const level = differences[0]?.confidence;
   parts.push(
@@ -89,20 +89,25 @@ export function comparePage(results: ResultsFolder): { title: string; body: stri
     parts.push(chartFigure(`difference-${metric}`, `${view.title}: a − b`, `Dot: mean difference; bar: its interval; dashed line: no difference.${notes.length > 0 ? ` ${notes.join(' ')}` : ''}`, chart.svg, chart.table));
   }
 
-  parts.push('<h2 id="robot-time">Robot time</h2>');
+  parts.push('<h2 id="section-robot-time">Robot time</h2>');
   const stack = robotTimeStack(summaries, robotTimeLabels);
   parts.push(chartFigure('robot-time', 'How robots spent their time, per policy', 'Mean shares of robot time after the warm-up.', stack.svg, stack.table));
 
-  parts.push('<h2 id="stations">Stations</h2>');
-  summaries.forEach((s, i) => parts.push(stationBars(`stations-${i}`, stationRows(s.stations ?? []), `Stations under ${s.policy}`).html));
+  parts.push('<h2 id="section-stations">Stations</h2>');
+  summaries.forEach((s, i) => {
+    const pickups = pickupRows(s.stations ?? []);
+    const drops = dropRows(s.stations ?? []);
+    if (pickups.length > 0) parts.push(pickupStationChart(`stations-${i}`, pickups, `Pickup stations under ${s.policy}`, 'comparison.json').html);
+    if (drops.length > 0) parts.push(dropStationChart(`drops-${i}`, drops, `Drops under ${s.policy}`, 'comparison.json').html);
+  });
 
   if (results.leadTimes) {
-    parts.push('<h2 id="lead-time">Lead time</h2>');
+    parts.push('<h2 id="section-lead-time">Lead time</h2>');
     parts.push(leadTimeChart('lead-time', results.leadTimes, [], true).html);
   }
 
   if (results.cells) {
-    parts.push('<h2 id="floor">Where robots waited, per policy</h2>');
+    parts.push('<h2 id="section-floor">Where robots waited, per policy</h2>');
     const byPolicy = names.map((name) => results.cells!.filter((c) => c.policy === name));
     const heatMax = Math.max(0, ...results.cells.map((c) => c.waitingSecondsPerHour));
     byPolicy.forEach((cells, i) => {

@@ -7,7 +7,7 @@
  */
 import * as Plot from '@observablehq/plot';
 import { nice } from 'd3-array';
-import { renderPlot, dataTable } from './plot.ts';
+import { compactTable, renderPlot } from './plot.ts';
 import { heatColours, wallColour } from './palette.ts';
 import { fixed } from './format.ts';
 import type { CellCsvRow } from './results-folder.ts';
@@ -86,15 +86,15 @@ export function floorMap(cells: CellCsvRow[], cellMeters: number, options: { hea
     marks,
   });
   const hottest = [...heat].sort((a, b) => b.waitingSecondsPerHour - a.waitingSecondsPerHour || a.y - b.y || a.x - b.x).slice(0, 15);
-  const table = dataTable(
+  const table = compactTable(
     'Cells where robots waited longest',
     [
-      { label: 'cell (x:y)', value: (c) => `${c.x}:${c.y}` },
+      { label: 'cell (x:y)', value: (c: (typeof hottest)[number]) => `${c.x}:${c.y}` },
       { label: 'kind', value: (c) => c.kind },
-      { label: 'waiting (s per hour)', value: (c) => fixed(c.waitingSecondsPerHour, 1), numeric: true },
+      { label: 'waiting (s/h)', value: (c) => fixed(c.waitingSecondsPerHour, 1), numeric: true },
     ],
     hottest,
-    `${heat.length} of ${cells.filter((c) => c.kind !== 'blocked').length} floor cells saw waiting; every cell is in cells.csv.`,
+    { parts: 3, note: `${heat.length} of ${cells.filter((c) => c.kind !== 'blocked').length} floor cells saw waiting; every cell is in cells.csv.` },
   );
   return { svg, table, heatCells: heat.length, stations: stations.length };
 }

@@ -38,12 +38,16 @@ p { margin: 4px 0 8px; }
 figure.chart { margin: 18px 0 26px; }
 figure.chart figcaption p { color: var(--muted); font-size: 0.88rem; }
 .plot svg { max-width: 100%; height: auto; }
+.plot-row { display: flex; align-items: flex-start; }
+.plot-row > svg { flex: 0 1 auto; min-width: 0; }
 table.data { border-collapse: collapse; font-size: 0.8rem; margin: 6px 0; font-variant-numeric: tabular-nums; }
 table.data caption { text-align: left; font-weight: 600; padding-bottom: 2px; }
 table.data th, table.data td { border-bottom: 1px solid var(--rule); padding: 2px 8px; text-align: left; }
 table.data .num { text-align: right; }
 table.data thead th { border-bottom: 1.5px solid var(--ink); }
 .table-note { font-size: 0.78rem; color: var(--muted); }
+.table-parts { display: flex; flex-wrap: wrap; gap: 0 22px; align-items: flex-start; }
+.tables { display: flex; flex-direction: column; gap: 10px; }
 dl.facts { display: grid; grid-template-columns: max-content 1fr; gap: 2px 14px; font-size: 0.9rem; }
 dl.facts dt { color: var(--muted); }
 dl.facts dd { margin: 0; }
@@ -54,7 +58,8 @@ footer { margin-top: 36px; border-top: 1px solid var(--rule); padding-top: 8px; 
   html { font-size: 10.5pt; }
   body { max-width: none; padding: 0; }
   h2 { break-after: avoid; }
-  figure.chart, .cards, table.data, .safety { break-inside: avoid; }
+  figure.chart .plot, .cards, table.data, .safety, dl.facts { break-inside: avoid; }
+  figure.chart figcaption { break-after: avoid; }
   * { print-color-adjust: exact; -webkit-print-color-adjust: exact; }
   .no-print { display: none !important; }
   a { color: inherit; text-decoration: none; }

@@ -1,12 +1,15 @@
 /**
- * The report of one run (`run --out`): headline numbers with intervals, the scenario and
- * its floor with the waiting heatmap, throughput over time, stations, lead-time
- * distribution, robot time split, deadlocks, the safety note and where the numbers came from.
+ * The report of one run (`run --out`): headline numbers with intervals, what limits the
+ * fleet (robots busy, robots parked while work waited, tasks held back by the policy's
+ * rules, stability, the demand mix), the scenario and its floor with the waiting heatmap,
+ * throughput over time, pickup stations (their time split: busy, no robot assigned, robot
+ * on its way, no work; queue time) and drops apart, the lead-time distribution, the robot
+ * time split, deadlocks, the safety note and where the numbers came from.
  */
 import { floorMap } from './floor-map.ts';
 import { chartFigure } from './plot.ts';
 import { intervalBars } from './charts/interval-bars.ts';
-import { stationBars, stationRows } from './charts/station-bars.ts';
+import { dropRows, dropStationChart, pickupRows, pickupStationChart } from './charts/station-charts.ts';
 import { leadTimeChart } from './charts/lead-time-histogram.ts';
 import { throughputOverTime } from './charts/throughput-over-time.ts';
 import { robotTimeColours } from './palette.ts';
@@ -18,27 +21,88 @@ import type { Json, ResultsFolder } from './results-folder.ts';
 export const robotTimeLabels = ['loaded travel', 'empty travel', 'handling', 'waiting / blocked', 'parked (no task)'] as const;
 const robotTimeKeys = ['loaded', 'empty', 'handling', 'waiting', 'parked'] as const;
 
+/** Above this total variation distance the served tasks stray from the demand's mix (the table's warning threshold, README "demand mix gap"). */
+const mixGapWarning = 0.05;
+
 /** Warnings a reader must see before any number. */
 export function runWarnings(summary: Json): string[] {
   const out: string[] = [];
   if (summary.collisions > 0) out.push(`The collision validator counted ${summary.collisions} collisions: the policy is defective and these numbers are not valid.`);
-  if (summary.wellFormed === false) out.push(`The floor is not well-formed for ${summary.robots} robots (${summary.wellFormedViolation ?? 'see fleetwright check'}): planned policies may not finish every task.`);
-  if (summary.stable === false) out.push('The backlog grew during the run (demand above capacity): lead times are biased low and throughput is capacity, not demand served.');
+  if (summary.wellFormed === false && summary.wellFormedWithRestCells !== true) out.push(`The floor is not well-formed for ${summary.robots} robots (${summary.wellFormedViolation ?? 'see fleetwright check'}): planned policies may not finish every task.`);
+  if (summary.stable === false) {
+    out.push(
+      `The backlog grew during the run (${intervalText(summary.backlogGrowthPerHour, 1)} tasks per hour: demand above what the fleet delivers): lead times are lower bounds (tasks still waiting count with their age so far) without an interval, and throughput is what the fleet managed, not the demand served.`,
+    );
+  }
   if (summary.warmup?.tooShort) out.push('The warm-up cut fell near half the run: the run is too short for a steady state; run longer before trusting these figures.');
   const gap = summary.littlesLaw?.relativeGap;
-  if (typeof gap === 'number' && gap > 0.1 && summary.stable !== false) out.push(`Little's law is off by ${(gap * 100).toFixed(0)}% (tasks in system vs throughput x lead time): demand may exceed capacity or the run is too short.`);
+  if (typeof gap === 'number' && gap > 0.1 && summary.stable === true) out.push(`Little's law is off by ${(gap * 100).toFixed(0)}% (tasks in system vs throughput x lead time): the run may be too short.`);
+  for (const group of ['pickup', 'drop'] as const) {
+    const value = summary.demandMixGap?.[group];
+    if (typeof value === 'number' && value > mixGapWarning) out.push(`The tasks served stray from the demand's mix at the ${group} stations (gap ${percent(value)}): some station's work is left waiting, so this throughput is not sustainable for this demand.`);
+  }
+  if (summary.trace?.notReleased > 0) out.push(`${summary.trace.notReleased} trace rows fall after the end of the run and were never released.`);
   return out;
 }
 
+/** Lead time as the page shows it: an interval, or a lower bound at an unstable run. */
+function leadCard(summary: Json, key: string): { value: string; unit: string } {
+  const interval = summary[key];
+  if (summary.capacityRun) return { value: '–', unit: 'capacity run: no lead time' };
+  if (summary.leadTimeIncludesOpenTasks || summary.stable === false) return { value: `≥ ${fixed(interval?.mean, 1)}`, unit: 's, lower bound (unstable: no interval)' };
+  return { value: fixed(interval?.mean, 1), unit: `± ${fixed(interval?.halfWidth, 1)} s` };
+}
+
 export function headlineCards(summary: Json): string {
+  const mean = leadCard(summary, 'leadTimeSeconds');
+  const p95 = leadCard(summary, 'leadTimeP95Seconds');
+  const pickup = summary.stationGroups?.pickup;
   return cards([
     { label: 'Throughput', value: fixed(summary.throughputPerHour?.mean, 1), unit: `± ${fixed(summary.throughputPerHour?.halfWidth, 1)} tasks/h`, field: 'throughputPerHour.mean' },
-    { label: 'Lead time, mean', value: fixed(summary.leadTimeSeconds?.mean, 1), unit: `± ${fixed(summary.leadTimeSeconds?.halfWidth, 1)} s`, field: 'leadTimeSeconds.mean' },
-    { label: 'Lead time, 95th percentile', value: fixed(summary.leadTimeP95Seconds?.mean, 1), unit: `± ${fixed(summary.leadTimeP95Seconds?.halfWidth, 1)} s`, field: 'leadTimeP95Seconds.mean' },
-    { label: 'Stations idle while work waited', value: percent(summary.stationStarvedFraction?.mean), unit: `± ${percent(summary.stationStarvedFraction?.halfWidth)}`, field: 'stationStarvedFraction.mean' },
+    { label: 'Lead time, mean', value: mean.value, unit: mean.unit, field: 'leadTimeSeconds.mean' },
+    { label: 'Lead time, 95th percentile', value: p95.value, unit: p95.unit, field: 'leadTimeP95Seconds.mean' },
+    { label: 'Stable', value: summary.stable === null || summary.stable === undefined ? '–' : summary.stable ? 'yes' : 'NO', unit: summary.stable === null ? 'capacity run' : `backlog ${intervalText(summary.backlogGrowthPerHour, 1)} tasks/h`, field: 'stable' },
+    { label: 'Robots busy (holding a task)', value: fixed(summary.busyRobots?.mean, 1), unit: `of ${summary.robots}, ± ${fixed(summary.busyRobots?.halfWidth, 1)}`, field: 'busyRobots.mean' },
+    {
+      label: 'Pickups idle, work waits, no robot',
+      value: percent(pickup?.noRobotWhileWorkWaitsFraction?.mean ?? summary.stationStarvedFraction?.mean),
+      unit: `± ${percent(pickup?.noRobotWhileWorkWaitsFraction?.halfWidth ?? summary.stationStarvedFraction?.halfWidth)} of their time`,
+      field: 'stationStarvedFraction.mean',
+    },
     { label: 'Deadlock episodes per replication', value: fixed(summary.deadlocks?.mean, 2), unit: `${fixed(summary.deadlockRobotHoursLost?.mean, 2)} robot-hours lost`, field: 'deadlocks.mean' },
     { label: 'Collisions (validator)', value: String(summary.collisions ?? '–'), unit: 'must be 0', field: 'collisions' },
   ]);
+}
+
+/** The figures that say what limits the fleet, one line each (only those the summary has). */
+function limitFacts(summary: Json): [string, string][] {
+  const rows: [string, string][] = [];
+  if (summary.busyRobots) rows.push(['robots busy', `${intervalText(summary.busyRobots, 1)} of ${summary.robots} robots hold a task on average`]);
+  if (summary.parkedWhileTasksOpenFraction) rows.push(['parked while tasks waited', `${intervalText(summary.parkedWhileTasksOpenFraction, 1, 100)}% of robot time a robot stood parked without a task while released tasks waited for one (the policy's rules, not the fleet, limit throughput when this is high under load)`]);
+  const held = summary.policyLimits?.heldBackTaskSecondsPerHour;
+  if (held) rows.push(['held back by the policy', `${intervalText(held, 0)} task-seconds per hour (${fixed((held.mean ?? NaN) / 3600, 1)} tasks on average) could not be taken by any robot under ${summary.policy}'s own rules`]);
+  const pickup = summary.stationGroups?.pickup;
+  if (pickup?.noRobotWhileWorkWaitsFraction) {
+    rows.push([
+      'pickup stations',
+      `busy ${intervalText(pickup.utilisation, 1, 100)}%; idle while work waited with no robot assigned ${intervalText(pickup.noRobotWhileWorkWaitsFraction, 1, 100)}%, with a robot on its way ${intervalText(pickup.robotTravellingWhileWorkWaitsFraction, 1, 100)}%; queue ${intervalText(pickup.queueSecondsPerHour, 1)} robot-seconds per hour per station; busiest ${pickup.busiest ? `${pickup.busiest.cell} (${percent(pickup.busiest.utilisation)})` : '–'}`,
+    ]);
+  }
+  const drop = summary.stationGroups?.drop;
+  if (drop?.utilisation && Number.isFinite(drop.utilisation.mean)) rows.push(['drops', `busy ${intervalText(drop.utilisation, 2, 100)}% on average; busiest ${drop.busiest ? `${drop.busiest.cell} (${percent(drop.busiest.utilisation)})` : '–'}`]);
+  if (summary.demandMixGap) rows.push(['demand mix gap', `pickups ${percent(summary.demandMixGap.pickup)}, drops ${percent(summary.demandMixGap.drop)} (0 = tasks served in the demand's proportions; above ${percent(mixGapWarning, 0)} some station's work is left waiting)`]);
+  if (summary.stable !== undefined) {
+    rows.push([
+      'stable',
+      summary.stable === null
+        ? 'not assessed (capacity run: demand saturates the fleet)'
+        : `${summary.stable ? 'yes' : 'NO'}: backlog growth ${intervalText(summary.backlogGrowthPerHour, 1)} tasks per hour after the warm-up (material above ${fixed(summary.stability?.materialGrowthPerHour, 1)}); ${(summary.stability?.perReplication ?? []).filter((r: Json) => r.stable).length} of ${summary.replications} replications stable on their own`,
+    ]);
+  }
+  if (summary.livelocks || summary.gridlocks) rows.push(['deadlocks, livelocks, gridlocks', `per replication: ${intervalText(summary.deadlocks, 2)} deadlocks, ${intervalText(summary.livelocks, 2)} livelocks, ${intervalText(summary.gridlocks, 2)} fleet gridlocks; ${intervalText(summary.deadlockRobotHoursLost, 2)} robot-hours lost`]);
+  if (typeof summary.restCellsUsed === 'number' && summary.restCellsUsed > 0) rows.push(['rest cells', `${summary.restCellsUsed} robots rest on rest cells beyond the parking spots; the floor is ${summary.wellFormedWithRestCells ? '' : 'NOT '}well-formed with them`]);
+  if (summary.capacityRun) rows.push(['capacity pool', `saturated demand: the open-task pool ended ${summary.capacityPoolDepth ?? '–'} deep; lead time and tasks in system of an artificial pool are not reported`]);
+  return rows;
 }
 
 export function runPage(results: ResultsFolder): { title: string; body: string } {
@@ -49,7 +113,10 @@ export function runPage(results: ResultsFolder): { title: string; body: string }
   const subtitle = `${summary.policy}, ${summary.robots} robots, ${summary.replications} replication${summary.replications === 1 ? '' : 's'} of ${duration(summary.hours * 3600)}, seed ${summary.seed}, ${Math.round(summary.confidence * 100)}% intervals (${summary.intervalMethod === 'batch-means' ? 'batch means of one run' : 'over replications'})`;
   const parts: string[] = [heading(title, subtitle), safetyBlock(), warnings(runWarnings(summary)), headlineCards(summary)];
 
-  parts.push('<h2 id="scenario">Scenario and floor</h2>');
+  parts.push('<h2 id="section-limits">What limits the fleet</h2>');
+  parts.push(facts(limitFacts(summary)));
+
+  parts.push('<h2 id="section-scenario">Scenario and floor</h2>');
   parts.push(
     facts([
       ['scenario', String(summary.scenario)],
@@ -57,8 +124,7 @@ export function runPage(results: ResultsFolder): { title: string; body: string }
       ['robots', String(summary.robots)],
       ['demand', demandText(scenario)],
       ['robot speed', scenario ? `${scenario.units.robotSpeedMps} m/s, cells of ${scenario.units.cellMeters} m` : 'unknown'],
-      ['simulated', `${summary.replications} x ${duration(summary.hours * 3600)}, warm-up cut ${duration(summary.warmupSeconds)} (${summary.warmup?.method ?? 'unknown'})`],
-      ['stable', summary.stable === undefined ? 'not assessed by this fleetwright' : summary.stable === null ? 'not assessed (capacity run: demand saturates the fleet)' : `${summary.stable ? 'yes' : 'no'}, backlog growth ${intervalText(summary.backlogGrowthPerHour, 1)} tasks per hour`],
+      ['simulated', `${summary.replications} x ${duration(summary.hours * 3600)}, warm-up cut ${duration(summary.warmupSeconds)} (${summary.warmup?.method ?? 'unknown'}${summary.warmup?.note ? `: ${summary.warmup.note}` : ''})`],
       ['tasks', `${summary.tasks.released} released, ${summary.tasks.delivered} delivered, ${summary.tasks.open} open at the end (all replications, warm-up included)`],
     ]),
   );
@@ -77,25 +143,32 @@ export function runPage(results: ResultsFolder): { title: string; body: string }
     parts.push('<p>No cells.csv in the folder (written by an older fleetwright): the floor and its heatmap are left out.</p>');
   }
 
-  parts.push('<h2 id="throughput">Throughput</h2>');
+  parts.push('<h2 id="section-throughput">Throughput</h2>');
   if (results.throughput) parts.push(throughputOverTime(results.throughput, summary.warmupSeconds).html);
 
-  parts.push('<h2 id="stations">Stations</h2>');
-  parts.push(stationBars('stations', stationRows(summary.stations ?? [])).html);
+  parts.push('<h2 id="section-stations">Stations</h2>');
+  const stations: Json[] = summary.stations ?? [];
+  const pickups = pickupRows(stations);
+  const drops = dropRows(stations);
+  if (pickups.length > 0) parts.push(pickupStationChart('stations', pickups, 'Pickup stations: where their time went', 'stations.csv').html);
+  if (drops.length > 0) parts.push(dropStationChart('drops', drops, 'Drops: how busy each one was', 'stations.csv').html);
 
-  parts.push('<h2 id="lead-time">Lead time</h2>');
-  if (results.leadTimes) {
+  parts.push('<h2 id="section-lead-time">Lead time</h2>');
+  if (summary.capacityRun) {
+    parts.push('<p>A capacity run (saturated demand) keeps an artificial pool of open tasks: its lead times mean nothing and are not drawn.</p>');
+  } else if (results.leadTimes) {
+    const lowerBound = summary.leadTimeIncludesOpenTasks === true;
     parts.push(
       leadTimeChart('lead-time', results.leadTimes, [
-        { label: 'mean', seconds: summary.leadTimeSeconds?.mean },
-        { label: 'p95', seconds: summary.leadTimeP95Seconds?.mean },
+        { label: lowerBound ? 'mean ≥' : 'mean', seconds: summary.leadTimeSeconds?.mean },
+        { label: lowerBound ? 'p95 ≥' : 'p95', seconds: summary.leadTimeP95Seconds?.mean },
       ]).html,
     );
   } else {
     parts.push('<p>No lead-times.csv in the folder: the distribution is left out.</p>');
   }
 
-  parts.push('<h2 id="robot-time">Robot time</h2>');
+  parts.push('<h2 id="section-robot-time">Robot time</h2>');
   const robotTime = intervalBars(
     robotTimeKeys.map((key, i) => ({ label: robotTimeLabels[i], interval: summary.robotTime[key], colour: robotTimeColours[i] })),
     { axisLabel: 'share of robot time (%)', caption: 'Robot time split', digits: 1, scale: 100, unit: '%' },
@@ -104,17 +177,17 @@ export function runPage(results: ResultsFolder): { title: string; body: string }
     chartFigure(
       'robot-time',
       'How robots spent their time',
-      'Share of all robot time after the warm-up, with its confidence interval. Much waiting means congestion; much parking means more robots than the work needs.',
+      'Share of all robot time after the warm-up, with its confidence interval. Much waiting means congestion; much parking means more robots than the work needs (or, with tasks waiting, a policy that does not use them).',
       robotTime.svg,
       robotTime.table,
     ),
   );
 
-  parts.push('<h2 id="deadlocks">Deadlocks</h2>');
+  parts.push('<h2 id="section-deadlocks">Deadlocks</h2>');
   parts.push(
-    `<p>${escapeHtml(`Deadlock episodes per replication: ${intervalText(summary.deadlocks, 2)}; robot-hours lost to them: ${intervalText(summary.deadlockRobotHoursLost, 2)}.`)}${
-      summary.livelocks ? escapeHtml(` Livelocks: ${intervalText(summary.livelocks, 2)}.`) : ''
-    }${summary.gridlocks ? escapeHtml(` Fleet gridlocks: ${intervalText(summary.gridlocks, 2)}.`) : ''} ${escapeHtml('Record a run (run --record) and open it with fleetwright replay to watch where they happen.')}</p>`,
+    `<p>${escapeHtml(
+      `Deadlock episodes per replication: ${intervalText(summary.deadlocks, 2)}; robot-hours lost to them: ${intervalText(summary.deadlockRobotHoursLost, 2)}.${summary.livelocks ? ` Livelocks: ${intervalText(summary.livelocks, 2)}.` : ''}${summary.gridlocks ? ` Fleet gridlocks: ${intervalText(summary.gridlocks, 2)}.` : ''} Record a run (run --record) and open it with fleetwright replay to watch where they happen.`,
+    )}</p>`,
   );
 
   parts.push(provenance(results.context, results.folder));
