@@ -73,7 +73,9 @@ interface Drawn {
   frame: number;
   x: number[];
   y: number[];
+  /** CSS pixels per cell; the canvas has devicePixelRatio device pixels per CSS pixel. */
   pixelsPerCell: number;
+  devicePixelRatio: number;
 }
 
 // Code run inside the page is passed as text: the Node-side type check has no DOM library.
@@ -158,7 +160,7 @@ describe('replay viewer in Chromium', () => {
       const expected = Array.from(truth, (cell) => [(cell % demo.width) + 0.5, Math.floor(cell / demo.width) + 0.5]);
       expect(drawn.x.map((x, r) => [x, drawn.y[r]]), `tick ${t}`).toEqual(expected);
       // The pixel at each robot's centre has the colour of its recorded state.
-      const centres = expected.map(([x, y]) => [Math.floor(x * drawn.pixelsPerCell), Math.floor(y * drawn.pixelsPerCell)]);
+      const centres = expected.map(([x, y]) => [Math.floor(x * drawn.pixelsPerCell * drawn.devicePixelRatio), Math.floor(y * drawn.pixelsPerCell * drawn.devicePixelRatio)]);
       const pixels = await inPage<number[][]>(
         watch,
         `(() => { const context = document.getElementById('floor').getContext('2d'); return ${JSON.stringify(centres)}.map(([x, y]) => Array.from(context.getImageData(x, y, 1, 1).data)); })()`,
@@ -168,6 +170,44 @@ describe('replay viewer in Chromium', () => {
         expect(hex(pixels[r]), `robot ${r} at tick ${t} (${state})`).toBe(stateColours[state]);
       }
     }
+    await watch.page.close();
+  });
+
+  it('scales the canvas to the page width, crisp at a device pixel ratio of 2, and refits when the window changes', async () => {
+    const watch = await openFile(browser, demo.html);
+    await ready(watch);
+    const geometry = () =>
+      inPage<{ section: number; css: number; cssHeight: number; backing: number; backingHeight: number; ratio: number }>(
+        watch,
+        `(() => { const c = document.getElementById('floor'); const r = c.getBoundingClientRect(); return { section: c.closest('section').clientWidth, css: r.width, cssHeight: r.height, backing: c.width, backingHeight: c.height, ratio: window.devicePixelRatio }; })()`,
+      );
+    // The demo hall is 40 x 20 cells: whole pixels per cell, as wide as the viewer allows (within one cell).
+    const wide = await geometry();
+    expect(wide.css).toBeLessThanOrEqual(wide.section);
+    expect(wide.css).toBeGreaterThan(wide.section - 40 - 4);
+    expect(wide.css % 40).toBe(0);
+    expect(wide.cssHeight).toBe(wide.css / 2);
+    expect(wide.backing).toBe(wide.css * wide.ratio);
+    // A narrower window at twice the pixel density (a high-DPI laptop): the backing store doubles, the floor refits.
+    const session = await watch.page.context().newCDPSession(watch.page);
+    await session.send('Emulation.setDeviceMetricsOverride', { width: 700, height: 900, deviceScaleFactor: 2, mobile: false });
+    await waitFor(watch, 'window.devicePixelRatio === 2 && window.__fleetwrightReplay.drawn().devicePixelRatio === 2');
+    const dense = await geometry();
+    expect(dense.ratio).toBe(2);
+    expect(dense.css).toBeLessThan(wide.css);
+    expect(dense.css).toBeGreaterThan(dense.section - 40 - 4);
+    expect([dense.backing, dense.backingHeight]).toEqual([dense.css * 2, dense.cssHeight * 2]);
+    // Robots are drawn at their cells in device pixels too: the pixel at each centre has the state's colour.
+    const t = 137;
+    await watch.page.locator('#scrubber').fill(String(t));
+    const drawn = await inPage<Drawn & { devicePixelRatio: number }>(watch, 'window.__fleetwrightReplay.drawn()');
+    const centres = drawn.x.map((x, r) => [Math.floor(x * drawn.pixelsPerCell * 2), Math.floor(drawn.y[r] * drawn.pixelsPerCell * 2)]);
+    const pixels = await inPage<number[][]>(
+      watch,
+      `(() => { const context = document.getElementById('floor').getContext('2d'); return ${JSON.stringify(centres)}.map(([x, y]) => Array.from(context.getImageData(x, y, 1, 1).data)); })()`,
+    );
+    for (let r = 0; r < demo.robots; r++) expect(hex(pixels[r]), `robot ${r}`).toBe(stateColours[robotStateNames[stateOfCode(demo.codes[t * demo.robots + r])]]);
+    await session.detach();
     await watch.page.close();
   });
 

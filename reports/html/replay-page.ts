@@ -52,7 +52,7 @@ const viewerStyle = `
 .controls input[type=range] { flex: 1 1 320px; }
 #time { font-variant-numeric: tabular-nums; min-width: 130px; }
 .canvas-box { display: inline-block; overflow: auto; border: 1px solid #ccc; max-width: 100%; }
-canvas#floor { display: block; image-rendering: pixelated; }
+canvas#floor { display: block; }
 ul.legend { list-style: none; padding: 0; display: flex; flex-wrap: wrap; gap: 6px 16px; font-size: 0.88rem; }
 ul.legend .swatch { display: inline-block; width: 12px; height: 12px; border: 1px solid #222; vertical-align: -1px; margin-right: 4px; }
 ul.legend .swatch.square { border-radius: 0; }

@@ -3,8 +3,9 @@
  * network, no inline handlers: every control is wired here with addEventListener, every
  * text from the recording set with textContent).
  *
- * Drawing: one canvas; the floor is drawn once to an offscreen canvas and copied each
- * frame; robots are batched into one path per colour and shape, so a frame costs a few
+ * Drawing: one canvas as wide as the viewer (whole CSS pixels per cell, a backing store at
+ * the screen's device pixel ratio so it stays crisp on high-DPI screens, refitted on
+ * resize); the floor is drawn once per size to an offscreen canvas and copied each frame; robots are batched into one path per colour and shape, so a frame costs a few
  * fill calls whatever the fleet size (no DOM node per robot). While playing, positions
  * are interpolated between ticks; paused or scrubbed, they are the recorded cells.
  * The waiting heatmap sums the robot-seconds of waiting (and stalled) per cell from the
@@ -53,7 +54,8 @@ declare global {
     __fleetwrightReplay?: {
       ready: boolean;
       frame(): number;
-      drawn(): { frame: number; x: number[]; y: number[]; pixelsPerCell: number; originX: number; originY: number };
+      /** Positions in cells (centres at +0.5); pixelsPerCell in CSS pixels, devicePixelRatio device pixels per CSS pixel. */
+      drawn(): { frame: number; x: number[]; y: number[]; pixelsPerCell: number; devicePixelRatio: number; originX: number; originY: number };
       playing(): boolean;
       frames: number;
     };
@@ -112,51 +114,70 @@ async function main(): Promise<void> {
   const countsList = byId('counts');
   const episodeList = byId('episodes');
 
-  // Canvas geometry: whole cells of at least 2 px, fitting the page width.
-  const available = Math.max(320, Math.min(1400, (canvas.parentElement?.clientWidth ?? 960) - 4));
-  const pixelsPerCell = Math.max(2, Math.min(28, Math.floor(available / width)));
-  const ratio = window.devicePixelRatio || 1;
-  canvas.width = width * pixelsPerCell * ratio;
-  canvas.height = height * pixelsPerCell * ratio;
-  canvas.style.width = `${width * pixelsPerCell}px`;
-  canvas.style.height = `${height * pixelsPerCell}px`;
+  // Canvas geometry: whole CSS pixels per cell (at least 2, at most 40) so that the floor
+  // fills the viewer's width (and fits the window's height), and a backing store of
+  // devicePixelRatio device pixels per CSS pixel, so lines and robots stay crisp on high-DPI
+  // screens. Recomputed when the page is resized.
+  const viewer = canvas.closest('section') ?? document.body;
+  let pixelsPerCell = 2;
+  let ratio = 1;
   const context = canvas.getContext('2d', { alpha: false })!;
-  context.setTransform(ratio, 0, 0, ratio, 0, 0);
-
-  // The floor, drawn once.
   const floorLayer = document.createElement('canvas');
-  floorLayer.width = canvas.width;
-  floorLayer.height = canvas.height;
   const floor = floorLayer.getContext('2d')!;
-  floor.setTransform(ratio, 0, 0, ratio, 0, 0);
-  floor.fillStyle = '#ffffff';
-  floor.fillRect(0, 0, width * pixelsPerCell, height * pixelsPerCell);
-  for (let y = 0; y < height; y++) {
-    const row = header.layout[y] ?? '';
-    for (let x = 0; x < width; x++) {
-      const c = row[x];
-      const px = x * pixelsPerCell;
-      const py = y * pixelsPerCell;
-      if (c === '#') {
-        floor.fillStyle = config.wallColour;
-        floor.fillRect(px, py, pixelsPerCell, pixelsPerCell);
-      } else if (c === 'H' || c === 'S' || c === 'C') {
-        floor.fillStyle = '#e6e6e6';
-        floor.fillRect(px, py, pixelsPerCell, pixelsPerCell);
-      } else if (c === 'P' || c === 'D') {
-        floor.strokeStyle = '#111111';
-        floor.lineWidth = Math.max(1, pixelsPerCell / 10);
-        floor.strokeRect(px + 1, py + 1, pixelsPerCell - 2, pixelsPerCell - 2);
-      }
-      if (pixelsPerCell >= 14 && c !== '#' && c !== '.') {
-        floor.fillStyle = c === 'P' || c === 'D' ? '#111111' : '#777777';
-        floor.font = `${Math.round(pixelsPerCell * 0.42)}px system-ui, sans-serif`;
-        floor.textAlign = 'left';
-        floor.textBaseline = 'top';
-        floor.fillText(c, px + 2, py + 1);
+
+  const drawFloor = () => {
+    floor.setTransform(ratio, 0, 0, ratio, 0, 0);
+    floor.fillStyle = '#ffffff';
+    floor.fillRect(0, 0, width * pixelsPerCell, height * pixelsPerCell);
+    for (let y = 0; y < height; y++) {
+      const row = header.layout[y] ?? '';
+      for (let x = 0; x < width; x++) {
+        const c = row[x];
+        const px = x * pixelsPerCell;
+        const py = y * pixelsPerCell;
+        if (c === '#') {
+          floor.fillStyle = config.wallColour;
+          floor.fillRect(px, py, pixelsPerCell, pixelsPerCell);
+        } else if (c === 'H' || c === 'S' || c === 'C') {
+          floor.fillStyle = '#e6e6e6';
+          floor.fillRect(px, py, pixelsPerCell, pixelsPerCell);
+        } else if (c === 'P' || c === 'D') {
+          floor.strokeStyle = '#111111';
+          floor.lineWidth = Math.max(1, pixelsPerCell / 10);
+          floor.strokeRect(px + 1, py + 1, pixelsPerCell - 2, pixelsPerCell - 2);
+        }
+        if (pixelsPerCell >= 14 && c !== '#' && c !== '.') {
+          floor.fillStyle = c === 'P' || c === 'D' ? '#111111' : '#777777';
+          floor.font = `${Math.round(pixelsPerCell * 0.42)}px system-ui, sans-serif`;
+          floor.textAlign = 'left';
+          floor.textBaseline = 'top';
+          floor.fillText(c, px + 2, py + 1);
+        }
       }
     }
-  }
+  };
+
+  /** Sizes the canvas to the viewer; true when the size changed. */
+  const fit = (): boolean => {
+    const available = Math.max(160, viewer.clientWidth - 4);
+    const tallest = Math.max(240, window.innerHeight - 180);
+    const cell = Math.max(2, Math.min(40, Math.floor(available / width), Math.floor(tallest / height)));
+    const dpr = window.devicePixelRatio || 1;
+    if (cell === pixelsPerCell && dpr === ratio && canvas.width > 0 && floorLayer.width === canvas.width) return false;
+    pixelsPerCell = cell;
+    ratio = dpr;
+    canvas.width = Math.round(width * pixelsPerCell * ratio);
+    canvas.height = Math.round(height * pixelsPerCell * ratio);
+    canvas.style.width = `${width * pixelsPerCell}px`;
+    canvas.style.height = `${height * pixelsPerCell}px`;
+    context.setTransform(ratio, 0, 0, ratio, 0, 0);
+    floorLayer.width = canvas.width;
+    floorLayer.height = canvas.height;
+    drawFloor();
+    return true;
+  };
+  canvas.width = 0;
+  fit();
 
   // State.
   let frame = 0;
@@ -306,6 +327,10 @@ async function main(): Promise<void> {
   });
   playButton.addEventListener('click', () => setPlaying(!playing));
   heatToggle.addEventListener('change', draw);
+  // A resize (window, zoom, a screen of another pixel density) refits the canvas and redraws.
+  window.addEventListener('resize', () => {
+    if (fit()) draw();
+  });
   document.addEventListener('keydown', (event) => {
     if (event.target instanceof HTMLSelectElement || event.target instanceof HTMLInputElement) return;
     if (event.key === ' ') {
@@ -343,7 +368,7 @@ async function main(): Promise<void> {
     frames,
     frame: () => frame,
     playing: () => playing,
-    drawn: () => ({ frame: drawnFrame, x: drawnX.slice(), y: drawnY.slice(), pixelsPerCell, originX: 0, originY: 0 }),
+    drawn: () => ({ frame: drawnFrame, x: drawnX.slice(), y: drawnY.slice(), pixelsPerCell, devicePixelRatio: ratio, originX: 0, originY: 0 }),
   };
   draw();
   document.body.dataset.ready = 'true';
