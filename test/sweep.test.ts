@@ -99,6 +99,21 @@ describe('bad sweep files exit 2 with one clear line', () => {
   });
 });
 
+describe('the example plan', () => {
+  it('examples/sweep-demo.yaml is the README plan: its scenario resolves from the plan file, 3 x 2 x 2 points x 5 replications', async () => {
+    const { loadSweepPlan } = await import('../experiments/sweep-plan.ts');
+    const plan = loadSweepPlan(path.join(repositoryRoot, 'examples', 'sweep-demo.yaml'));
+    expect(plan.scenarioPath).toBe(path.join(repositoryRoot, 'scenarios', 'demo-sortation.yaml'));
+    expect(plan.vary.map((v) => [v.path, v.values])).toEqual([
+      ['fleet.robots', [10, 20, 30]],
+      ['policy.name', ['token-passing', 'flow-batch']],
+      ['demand.tasksPerHour', [800, 1200]],
+    ]);
+    expect([plan.points.length, plan.runs.length]).toEqual([12, 60]);
+    expect(readFileSync(path.join(repositoryRoot, 'README.md'), 'utf8')).toContain('examples/sweep-demo.yaml');
+  });
+});
+
 describe('shards from the scheduler environment', () => {
   it('reads --shard, Slurm array variables (from SLURM_ARRAY_TASK_MIN) and Kubernetes completion indexes', () => {
     expect(shardFrom('2/5', {})).toMatchObject({ index: 2, count: 5 });
