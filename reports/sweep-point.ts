@@ -10,8 +10,9 @@
  *   the warm-up cut), which get the value and no interval;
  * - stability: the verdict of reports/stability.ts over the replications' own backlog
  *   trends (unstable when the pooled growth is significant and material, or when every
- *   replication on its own is); at an unstable point the lead times are lower bounds (the
- *   mean of the replications' figures, no interval).
+ *   replication on its own is; stable when the growth interval lies below the material
+ *   growth; undetermined otherwise); at an unstable point the lead times are lower bounds
+ *   (the mean of the replications' figures, no interval).
  *
  * Each replication keeps its own warm-up cut (it ran alone), so a point's figures can
  * differ slightly from `run` with the same replications, which cuts all of them at one
@@ -101,8 +102,10 @@ export interface PointSummary {
   point: number;
   parameters: Record<string, unknown>;
   replications: number;
-  /** The point's verdict over its replications; null for capacity (saturated) points or when no replication was judged. */
+  /** The point's verdict over its replications (false only when growth is shown); null for capacity (saturated) points or when no replication was judged. */
   stable: boolean | null;
+  /** The three-way verdict of reports/stability.ts: `undetermined` when the growth interval is too wide to show a bounded backlog. */
+  stabilityVerdict: 'stable' | 'unstable' | 'undetermined' | null;
   /** Share of the replications judged stable on their own; null when none was judged. */
   stableShare: number | null;
   /** Lead times are lower bounds here (unstable point): mean only. */
@@ -184,6 +187,7 @@ export class PointAccumulator {
       parameters: this.parameters,
       replications: this.runs,
       stable,
+      stabilityVerdict: verdict?.verdict ?? null,
       stableShare: this.judged.length > 0 ? this.judged.filter(Boolean).length / this.judged.length : null,
       leadTimeIsLowerBound: stable === false,
       figures,

@@ -57,7 +57,7 @@ export function runsCsvRow(line: RunLine, parameters: readonly string[]): string
 }
 
 export function summaryCsvHeader(parameters: readonly string[]): string {
-  const columns = ['point', ...parameters, 'replications', 'stable', 'stableShare', 'leadTimeIsLowerBound'];
+  const columns = ['point', ...parameters, 'replications', 'stable', 'stabilityVerdict', 'stableShare', 'leadTimeIsLowerBound'];
   for (const { name } of sweepFigures) columns.push(`${name}Mean`, `${name}HalfWidth`, `${name}Low`, `${name}High`);
   columns.push('collisions');
   return stringify([columns]);
@@ -71,6 +71,7 @@ export function summaryCsvRow(point: PointAccumulator, parameters: readonly stri
     ...parameters.map((p) => spreadsheetValue(summary.parameters[p])),
     summary.replications,
     stableText(summary.stable),
+    summary.stabilityVerdict ?? '',
     summary.stableShare === null ? '' : round(summary.stableShare),
     stableText(summary.leadTimeIsLowerBound),
   ];

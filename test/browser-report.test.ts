@@ -30,6 +30,15 @@ beforeAll(async () => {
   ok(fleetwright('report', path.join(folder, 'run'), '--html', path.join(folder, 'run.html')));
   ok(fleetwright('compare', 'scenarios/demo-sortation.yaml', '--policies', 'token-passing,greedy-reactive', '--robots', '12', '--hours', '0.25', '--reps', '2', '--out', path.join(folder, 'compare')));
   ok(fleetwright('report', path.join(folder, 'compare'), '--html', path.join(folder, 'compare.html')));
+  // The shift hall: a battery, breakdowns and an hourly demand profile (the run page's optional parts).
+  ok(fleetwright('run', 'scenarios/demo-sortation-shift.yaml', '--hours', '2', '--reps', '2', '--out', path.join(folder, 'shift')));
+  const shiftSummary = path.join(folder, 'shift', 'summary.json');
+  expect(JSON.parse(readFileSync(shiftSummary, 'utf8')).robotTime.charging).toBeDefined();
+  ok(fleetwright('report', path.join(folder, 'shift'), '--html', path.join(folder, 'shift.html')));
+  const profiled = path.join(folder, 'profiled.yaml');
+  writeFileSync(profiled, readFileSync(path.join(repositoryRoot, 'scenarios', 'demo-sortation.yaml'), 'utf8').replace('  # profile: [0.8, 1.0, 1.2, 1.0] ', '  profile: [0.8, 1.2]            '));
+  ok(fleetwright('run', profiled, '--hours', '2', '--reps', '2', '--out', path.join(folder, 'profiled')));
+  ok(fleetwright('report', path.join(folder, 'profiled'), '--html', path.join(folder, 'profiled.html')));
   // Real size and sweep outputs on the small hall (one robot there delivers about 190 tasks/h: test/size.test.ts).
   ok(fleetwright('size', smallHall, '--target', '200', '--hours', '0.5', '--reps', '2', '--out', path.join(folder, 'size')));
   ok(fleetwright('report', path.join(folder, 'size'), '--html', path.join(folder, 'size.html')));
@@ -152,6 +161,30 @@ describe('run report in Chromium', () => {
     await watch.page.close();
   });
 
+  it('draws the optional parts a scenario has: charging and broken robot time, the lead-time split, the hourly profile', async () => {
+    const watch = await openFile(browser, path.join(folder, 'shift.html'));
+    expect(watch.consoleErrors).toEqual([]);
+    const summary = JSON.parse(readFileSync(path.join(folder, 'shift', 'summary.json'), 'utf8'));
+    const count = (selector: string) => watch.page.locator(selector).count();
+    // Seven robot time parts (the five, charging, broken down), one bar each.
+    expect(Object.keys(summary.robotTime)).toHaveLength(7);
+    expect(await count('#robot-time .mark-mean-bar rect')).toBe(7);
+    const split = Object.values(summary.leadTimeSplit as Record<string, { low: number | null }>);
+    expect(await count('#lead-time-split .mark-mean-bar rect')).toBe(4);
+    expect(await count('#lead-time-split .mark-interval line')).toBe(split.filter((i) => i.low !== null).length);
+    const limits = (await watch.page.locator('#section-limits + dl.facts').textContent()) ?? '';
+    expect(limits).toContain(`${(summary.availability.mean * 100).toFixed(1)}`);
+    expect(limits).toContain(`chargers busy ${(summary.charging.chargerUtilisation.mean * 100).toFixed(1)}`);
+    await watch.page.close();
+    // An hourly profile: offered and delivered per hour of the profile, one point each.
+    const profiled = await openFile(browser, path.join(folder, 'profiled.html'));
+    const hourly = JSON.parse(readFileSync(path.join(folder, 'profiled', 'summary.json'), 'utf8')).hourly;
+    expect(hourly.rows).toHaveLength(2);
+    expect(await profiled.page.locator('#hourly .mark-hourly-point circle').count()).toBe(2 * hourly.rows.length);
+    expect(await profiled.page.locator('#hourly table.data tbody tr').count()).toBe(hourly.rows.length);
+    await profiled.page.close();
+  });
+
   it('shows the numbers of summary.json', async () => {
     const watch = await openFile(browser, path.join(folder, 'run.html'));
     const summary = JSON.parse(readFileSync(path.join(folder, 'run', 'summary.json'), 'utf8'));
@@ -160,7 +193,7 @@ describe('run report in Chromium', () => {
     expect(await shown('leadTimeSeconds.mean')).toBe(summary.leadTimeSeconds.mean.toFixed(1));
     expect(await shown('collisions')).toBe(String(summary.collisions));
     expect(await shown('busyRobots.mean')).toBe(summary.busyRobots.mean.toFixed(1));
-    expect(await shown('stable')).toBe(summary.stable ? 'yes' : 'NO');
+    expect(await shown('stable')).toBe(summary.stable === false ? 'NO' : summary.stabilityVerdict === 'undetermined' ? 'undetermined' : 'yes');
     // What limits the fleet: the figures the engine and policy report, one line each.
     const limits = (await watch.page.locator('#section-limits + dl.facts').textContent()) ?? '';
     expect(limits).toContain(`${(summary.parkedWhileTasksOpenFraction.mean * 100).toFixed(1)}`);
@@ -263,10 +296,11 @@ describe('size and sweep pages in Chromium', () => {
       expect([robots, rate, replications]).toEqual([row['fleet.robots'], row['demand.tasksPerHour'], row.replications]);
       expect(throughput).toBe(`${Number(row.throughputPerHourMean).toFixed(1)} ± ${Number(row.throughputPerHourHalfWidth).toFixed(1)}`);
       if (row.stable === 'false') {
+        expect(row.stabilityVerdict).toBe('unstable');
         expect(stable).toMatch(/^NO: backlog grew/);
         expect(lead).toBe(`≥ ${Number(row.leadTimeSecondsMean).toFixed(1)} (lower bound)`);
       } else {
-        expect(stable).toMatch(/^yes/);
+        expect(stable).toMatch(row.stabilityVerdict === 'undetermined' ? /^undetermined/ : /^yes/);
         expect(lead).toBe(`${Number(row.leadTimeSecondsMean).toFixed(1)} ± ${Number(row.leadTimeSecondsHalfWidth).toFixed(1)}`);
       }
       expect(stable).toContain(`(${Math.round(Number(row.stableShare) * 2)} of 2 stable alone)`);

@@ -310,7 +310,7 @@ describe('an unstable point in summary.csv', () => {
     expect([light['demand.tasksPerHour'], heavy['demand.tasksPerHour']]).toEqual(['60', '900']);
     // Every replication of the overload is unstable on its own, so the point is (reports/stability.ts: "or when every replication on its own is").
     expect(lines.filter((l) => l.point === 1).map((l) => l.summary.stable)).toEqual([false, false, false]);
-    expect([heavy.stable, heavy.stableShare, heavy.leadTimeIsLowerBound]).toEqual(['false', '0', 'true']);
+    expect([heavy.stable, heavy.stabilityVerdict, heavy.stableShare, heavy.leadTimeIsLowerBound]).toEqual(['false', 'unstable', '0', 'true']);
     const leads = lines.filter((l) => l.point === 1).map((l) => l.summary.leadTimeSeconds.mean as number);
     expect(Number(heavy.leadTimeSecondsMean)).toBeCloseTo(leads.reduce((s, v) => s + v, 0) / 3, 4);
     for (const figure of ['leadTimeSeconds', 'leadTimeP50Seconds', 'leadTimeP95Seconds']) expect([heavy[`${figure}HalfWidth`], heavy[`${figure}Low`], heavy[`${figure}High`]]).toEqual(['', '', '']);

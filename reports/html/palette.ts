@@ -25,6 +25,9 @@ export const stateColours = {
 
 /** The five robot time categories of the run summary, in its order. */
 export const robotTimeColours = [stateColours.loaded, stateColours.empty, stateColours.handling, stateColours.waiting, stateColours.parked] as const;
+/** Robot time charging (with a battery) and broken down (with breakdowns): Okabe-Ito reddish purple and orange, labelled bars. */
+export const chargingColour = '#cc79a7';
+export const brokenColour = '#e69f00';
 
 /** Policies in a comparison (Okabe-Ito, black and yellow left out: black is for text, yellow is faint on white). */
 export const policyColours = ['#0072b2', '#d55e00', '#009e73', '#cc79a7', '#e69f00', '#56b4e9'] as const;

@@ -7,12 +7,13 @@
  * time split, deadlocks, the safety note and where the numbers came from.
  */
 import { floorMap } from './floor-map.ts';
-import { chartFigure } from './plot.ts';
+import * as Plot from '@observablehq/plot';
+import { chartFigure, dataTable, renderPlot } from './plot.ts';
 import { intervalBars } from './charts/interval-bars.ts';
 import { dropRows, dropStationChart, pickupRows, pickupStationChart } from './charts/station-charts.ts';
 import { leadTimeChart } from './charts/lead-time-histogram.ts';
 import { throughputOverTime } from './charts/throughput-over-time.ts';
-import { robotTimeColours } from './palette.ts';
+import { brokenColour, chargingColour, robotTimeColours, stateColours } from './palette.ts';
 import { duration, fixed, intervalText, percent } from './format.ts';
 import { cards, demandText, facts, heading, provenance, safetyBlock, warnings } from './sections.ts';
 import { escapeHtml } from './escape.ts';
@@ -45,6 +46,13 @@ export function runWarnings(summary: Json): string[] {
   return out;
 }
 
+/** yes, NO (growth shown) or undetermined (the growth interval too wide to show a bounded backlog); – for capacity runs. */
+function stableWord(summary: Json): string {
+  if (summary.stable === null || summary.stable === undefined) return '–';
+  if (summary.stable === false) return 'NO';
+  return summary.stabilityVerdict === 'undetermined' ? 'undetermined' : 'yes';
+}
+
 /** Lead time as the page shows it: an interval, or a lower bound at an unstable run. */
 function leadCard(summary: Json, key: string): { value: string; unit: string } {
   const interval = summary[key];
@@ -61,7 +69,7 @@ export function headlineCards(summary: Json): string {
     { label: 'Throughput', value: fixed(summary.throughputPerHour?.mean, 1), unit: `± ${fixed(summary.throughputPerHour?.halfWidth, 1)} tasks/h`, field: 'throughputPerHour.mean' },
     { label: 'Lead time, mean', value: mean.value, unit: mean.unit, field: 'leadTimeSeconds.mean' },
     { label: 'Lead time, 95th percentile', value: p95.value, unit: p95.unit, field: 'leadTimeP95Seconds.mean' },
-    { label: 'Stable', value: summary.stable === null || summary.stable === undefined ? '–' : summary.stable ? 'yes' : 'NO', unit: summary.stable === null ? 'capacity run' : `backlog ${intervalText(summary.backlogGrowthPerHour, 1)} tasks/h`, field: 'stable' },
+    { label: 'Stable', value: stableWord(summary), unit: summary.stable === null ? 'capacity run' : `backlog ${intervalText(summary.backlogGrowthPerHour, 1)} tasks/h`, field: 'stable' },
     { label: 'Robots busy (holding a task)', value: fixed(summary.busyRobots?.mean, 1), unit: `of ${summary.robots}, ± ${fixed(summary.busyRobots?.halfWidth, 1)}`, field: 'busyRobots.mean' },
     {
       label: 'Pickups idle, work waits, no robot',
@@ -96,10 +104,12 @@ function limitFacts(summary: Json): [string, string][] {
       'stable',
       summary.stable === null
         ? 'not assessed (capacity run: demand saturates the fleet)'
-        : `${summary.stable ? 'yes' : 'NO'}: backlog growth ${intervalText(summary.backlogGrowthPerHour, 1)} tasks per hour after the warm-up (material above ${fixed(summary.stability?.materialGrowthPerHour, 1)}); ${(summary.stability?.perReplication ?? []).filter((r: Json) => r.stable).length} of ${summary.replications} replications stable on their own`,
+        : `${stableWord(summary)}: backlog growth ${intervalText(summary.backlogGrowthPerHour, 1)} tasks per hour after the warm-up (material above ${fixed(summary.stability?.materialGrowthPerHour, 1)}); ${(summary.stability?.perReplication ?? []).filter((r: Json) => r.stable).length} of ${summary.replications} replications stable on their own${summary.stabilityVerdict === 'undetermined' ? '; undetermined: the growth interval is too wide to show a bounded backlog (more replications or longer runs decide)' : ''}`,
     ]);
   }
   if (summary.livelocks || summary.gridlocks) rows.push(['deadlocks, livelocks, gridlocks', `per replication: ${intervalText(summary.deadlocks, 2)} deadlocks, ${intervalText(summary.livelocks, 2)} livelocks, ${intervalText(summary.gridlocks, 2)} fleet gridlocks; ${intervalText(summary.deadlockRobotHoursLost, 2)} robot-hours lost`]);
+  if (summary.availability) rows.push(['availability', `${intervalText(summary.availability, 1, 100)}% of robot time not broken down${summary.breakdowns ? ` (MTBF / (MTBF + MTTR) = ${percent(summary.breakdowns.expectedAvailability)}; ${intervalText(summary.breakdowns.failuresPerHour, 2)} breakdowns per hour${summary.breakdowns.throughputLostPerHour ? `; they cost ${intervalText(summary.breakdowns.throughputLostPerHour, 1)} tasks/h` : ''})` : ''}`]);
+  if (summary.charging) rows.push(['charging', `chargers busy ${intervalText(summary.charging.chargerUtilisation, 1, 100)}%; ${intervalText(summary.charging.queueRobots, 2)} robots waiting for one on average; ${intervalText(summary.charging.chargesPerHour, 1)} charges per hour${summary.charging.ranFlat > 0 ? `; ${summary.charging.ranFlat} robots RAN FLAT (the figures are optimistic)` : ''}`]);
   if (typeof summary.restCellsUsed === 'number' && summary.restCellsUsed > 0) rows.push(['rest cells', `${summary.restCellsUsed} robots rest on rest cells beyond the parking spots; the floor is ${summary.wellFormedWithRestCells ? '' : 'NOT '}well-formed with them`]);
   if (summary.capacityRun) rows.push(['capacity pool', `saturated demand: the open-task pool ended ${summary.capacityPoolDepth ?? '–'} deep; lead time and tasks in system of an artificial pool are not reported`]);
   return rows;
@@ -167,10 +177,58 @@ export function runPage(results: ResultsFolder): { title: string; body: string }
   } else {
     parts.push('<p>No lead-times.csv in the folder: the distribution is left out.</p>');
   }
+  const split = summary.leadTimeSplit;
+  if (split && !summary.capacityRun) {
+    const bars = intervalBars(
+      [
+        { label: 'waiting for a robot', interval: split.waitingForRobotSeconds, colour: stateColours.stalled },
+        { label: 'empty travel', interval: split.emptyTravelSeconds, colour: stateColours.empty },
+        { label: 'loaded travel', interval: split.loadedTravelSeconds, colour: stateColours.loaded },
+        { label: 'handling', interval: split.handlingSeconds, colour: stateColours.handling },
+      ],
+      { axisLabel: 'seconds of the mean lead time', caption: 'Mean lead time in four parts', digits: 1, unit: 's' },
+    );
+    parts.push(
+      chartFigure(
+        'lead-time-split',
+        'Where the lead time goes',
+        `The mean lead time of tasks delivered after the warm-up in four parts that add up to it: waiting for a robot (release to the assignment that carried it), empty travel to the pickup, loaded travel to the drop, and handling at both. Long waiting for a robot means too few robots or a dispatch that leaves work waiting; travel includes every stop on the way.${summary.stable === false ? ' The run is unstable: the parts have no interval.' : ''}`,
+        bars.svg,
+        bars.table,
+      ),
+    );
+  }
+  const hourly = summary.hourly;
+  if (hourly && Array.isArray(hourly.rows) && hourly.rows.length > 0) {
+    parts.push(
+      chartFigure(
+        'hourly',
+        'Throughput and lead time per hour of the demand profile',
+        `Per hour of the profile (run hours counted after the warm-up: ${hourly.hoursCounted}), offered and delivered tasks per hour and the mean lead time of the tasks released in that hour. The peak hour (${hourly.peakHour + 1}) is what a site is sized for.`,
+        hourlyChart(hourly.rows),
+        dataTable(
+          'Per hour of the profile',
+          [
+            { label: 'hour', value: (r: Json) => `${r.hour + 1}${r.hour === hourly.peakHour ? ' (peak)' : ''}` },
+            { label: 'multiplier', value: (r: Json) => fixed(r.multiplier, 2), numeric: true },
+            { label: 'released (tasks/h)', value: (r: Json) => intervalText(r.releasedPerHour, 1), numeric: true },
+            { label: 'throughput (tasks/h)', value: (r: Json) => intervalText(r.throughputPerHour, 1), numeric: true },
+            { label: 'lead time (s)', value: (r: Json) => intervalText(r.leadTimeSeconds, 1), numeric: true },
+          ],
+          hourly.rows,
+        ),
+      ),
+    );
+  }
 
   parts.push('<h2 id="section-robot-time">Robot time</h2>');
   const robotTime = intervalBars(
-    robotTimeKeys.map((key, i) => ({ label: robotTimeLabels[i], interval: summary.robotTime[key], colour: robotTimeColours[i] })),
+    [
+      ...robotTimeKeys.map((key, i) => ({ label: robotTimeLabels[i], interval: summary.robotTime[key], colour: robotTimeColours[i] })),
+      // With a battery or breakdowns the split has these parts too (the shares still add up to 1).
+      ...(summary.robotTime.charging ? [{ label: 'charging', interval: summary.robotTime.charging, colour: chargingColour }] : []),
+      ...(summary.robotTime.broken ? [{ label: 'broken down', interval: summary.robotTime.broken, colour: brokenColour }] : []),
+    ],
     { axisLabel: 'share of robot time (%)', caption: 'Robot time split', digits: 1, scale: 100, unit: '%' },
   );
   parts.push(
@@ -192,4 +250,26 @@ export function runPage(results: ResultsFolder): { title: string; body: string }
 
   parts.push(provenance(results.context, results.folder));
   return { title, body: parts.join('\n') };
+}
+
+/** Offered and delivered tasks per hour of the profile (two lines) with their intervals. */
+function hourlyChart(rows: Json[]): string {
+  const data = rows.flatMap((r) => [
+    { hour: r.hour + 1, series: 'offered (released)', mean: r.releasedPerHour?.mean, low: r.releasedPerHour?.low, high: r.releasedPerHour?.high },
+    { hour: r.hour + 1, series: 'delivered', mean: r.throughputPerHour?.mean, low: r.throughputPerHour?.low, high: r.throughputPerHour?.high },
+  ]).filter((d) => Number.isFinite(d.mean));
+  return renderPlot({
+    width: 880,
+    height: 260,
+    marginLeft: 60,
+    x: { label: 'hour of the profile', ticks: rows.map((r) => r.hour + 1), tickFormat: 'd' },
+    y: { grid: true, label: 'tasks per hour', nice: true, zero: true },
+    color: { domain: ['offered (released)', 'delivered'], range: ['#777777', stateColours.loaded], legend: true },
+    marks: [
+      Plot.ruleY([0]),
+      Plot.line(data, { x: 'hour', y: 'mean', stroke: 'series', strokeWidth: 1.5 }),
+      Plot.ruleX(data.filter((d) => d.low !== null && d.high !== null && d.low !== undefined), { x: 'hour', y1: 'low', y2: 'high', stroke: 'series', strokeWidth: 2 }),
+      Plot.dot(data, { x: 'hour', y: 'mean', fill: 'series', r: 3.5, className: 'mark-hourly-point' }),
+    ],
+  });
 }

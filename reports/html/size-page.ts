@@ -51,7 +51,7 @@ export function sizePage(results: ResultsFolder): { title: string; body: string 
       facts([
         [
           'hand formula',
-          `cycle time Tc = ${fixed(hand.loadSeconds, 1)} s load + ${fixed(hand.loadedTravelSeconds, 1)} s loaded travel + ${fixed(hand.unloadSeconds, 1)} s unload + ${fixed(hand.emptyTravelSeconds, 1)} s empty travel = ${fixed(hand.cycleSeconds, 1)} s, so ${fixed(hand.perRobotPerHour, 1)} tasks/h per robot; ${doc.target} tasks/h need ${fixed(hand.robotsExact, 2)} robots, ${hand.robots} rounded up (Groover, ch. 10: true shortest-path distances of the layout, mean handling times, no traffic)`,
+          `cycle time Tc = ${fixed(hand.loadSeconds, 1)} s load + ${fixed(hand.loadedTravelSeconds, 1)} s loaded travel + ${fixed(hand.unloadSeconds, 1)} s unload + ${fixed(hand.emptyTravelSeconds, 1)} s empty travel = ${fixed(hand.cycleSeconds, 1)} s, so ${fixed(hand.perRobotPerHour, 1)} tasks/h per robot${hand.availability && hand.availability.total < 1 ? ` at availability ${percent(hand.availability.total)} (breakdowns ${percent(hand.availability.breakdowns)}, charging ${percent(hand.availability.charging)})` : ''}; ${doc.target} tasks/h need ${fixed(hand.robotsExact, 2)} robots, ${hand.robots} rounded up (Groover, ch. 10: true shortest-path distances of the layout, mean handling times, no traffic)`,
         ],
         ['lower bound', `${hand.lowerBoundRobots} robots (handling and loaded travel alone): smaller fleets were not run`],
         ...(hand.stationLimit ? ([['busiest station', `${hand.stationLimit.kind} ${hand.stationLimit.cell}: ${percent(hand.stationLimit.share)} of tasks, at most ${fixed(hand.stationLimit.tasksPerHour, 0)} tasks/h whatever the fleet`]] as [string, string][]) : []),

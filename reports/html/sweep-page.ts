@@ -42,7 +42,14 @@ export function leadText(point: PointSummary, name: string): string {
 export function stableText(point: PointSummary): string {
   if (point.stable === null) return '–';
   const judged = point.stableShare === null ? '' : ` (${Math.round(point.stableShare * point.replications)} of ${point.replications} stable alone)`;
-  return `${point.stable ? 'yes' : 'NO: backlog grew'}${judged}`;
+  const verdict = point.stable === false ? 'NO: backlog grew' : point.stabilityVerdict === 'undetermined' ? 'undetermined: growth interval too wide' : 'yes';
+  return `${verdict}${judged}`;
+}
+
+/** The short flag of the point table. */
+function stableFlag(point: PointSummary): string {
+  if (point.stable === null) return '–';
+  return point.stable === false ? 'NO' : point.stabilityVerdict === 'undetermined' ? 'undetermined' : 'yes';
 }
 
 export function sweepPage(results: ResultsFolder): { title: string; body: string } {
@@ -126,14 +133,14 @@ export function sweepPage(results: ResultsFolder): { title: string; body: string
       `Parameter points (${Math.round(confidence * 100)}% intervals; summary.csv holds every figure)`,
       [
         ...varying.map((n) => ({ label: n, value: (p: PointSummary) => String(p.parameters[n]) })),
-        { label: 'stable', value: (p: PointSummary) => (p.stable === null ? '–' : p.stable ? 'yes' : 'NO') },
+        { label: 'stable', value: stableFlag },
         { label: 'backlog growth (tasks/h)', value: (p: PointSummary) => intervalText(p.figures.backlogGrowthPerHour, 1), numeric: true },
         { label: 'busy robots', value: (p: PointSummary) => intervalText(p.figures.busyRobots, 1), numeric: true },
         { label: 'no robot while work waits (%)', value: (p: PointSummary) => intervalText(p.figures.stationStarvedFraction, 1, 100), numeric: true },
         { label: 'deadlocks per replication', value: (p: PointSummary) => intervalText(p.figures.deadlocks, 2), numeric: true },
       ],
       points,
-      'Stable: the backlog of released, undelivered tasks did not grow (the run summary’s test over the point’s replications). No robot while work waits: the share of time pickup stations stood idle with work waiting and no robot assigned to it.',
+      'Stable: the backlog of released, undelivered tasks did not grow (the run summary’s test over the point’s replications); undetermined: its growth interval is too wide to show that (more replications or longer runs decide). No robot while work waits: the share of time pickup stations stood idle with work waiting and no robot assigned to it.',
     ),
   );
   parts.push(provenance(results.context, results.folder));
