@@ -65,7 +65,9 @@ describe('run report in Chromium', () => {
     await watch.page.screenshot({ path: artifact('report-run.png'), fullPage: true });
     if (process.env.FLEETWRIGHT_UPDATE_SCREENSHOTS === '1') {
       mkdirSync(path.join(repositoryRoot, 'docs'), { recursive: true });
-      await watch.page.screenshot({ path: path.join(repositoryRoot, 'docs', 'report-screenshot.png'), clip: { x: 0, y: 0, width: 1100, height: 1250 }, fullPage: true });
+      // From the top to the end of the floor map: headline numbers, what limits the fleet, the floor with its heatmap.
+      const floor = await watch.page.locator('figure#floor .plot').boundingBox();
+      await watch.page.screenshot({ path: path.join(repositoryRoot, 'docs', 'report-screenshot.png'), clip: { x: 0, y: 0, width: 1100, height: Math.ceil((floor?.y ?? 1240) + (floor?.height ?? 0) + 10) }, fullPage: true });
     }
     await watch.page.emulateMedia({ media: 'print' });
     await watch.page.pdf({ path: artifact('report-run.pdf'), format: 'A4', printBackground: true });

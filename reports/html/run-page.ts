@@ -104,7 +104,7 @@ function limitFacts(summary: Json): [string, string][] {
       'stable',
       summary.stable === null
         ? 'not assessed (capacity run: demand saturates the fleet)'
-        : `${stableWord(summary)}: backlog growth ${intervalText(summary.backlogGrowthPerHour, 1)} tasks per hour after the warm-up (material above ${fixed(summary.stability?.materialGrowthPerHour, 1)}); ${(summary.stability?.perReplication ?? []).filter((r: Json) => r.stable).length} of ${summary.replications} replications stable on their own${summary.stabilityVerdict === 'undetermined' ? '; undetermined: the growth interval is too wide to show a bounded backlog (more replications or longer runs decide)' : ''}`,
+        : `${stableWord(summary)}: backlog growth ${intervalText(summary.backlogGrowthPerHour, 1)} tasks per hour after the warm-up (material above ${fixed(summary.stability?.materialGrowthPerHour, 1)}); ${(summary.stability?.perReplication ?? []).filter((r: Json) => r.stable).length} of ${summary.replications} replications stable on their own${summary.stabilityVerdict === 'undetermined' ? '; the growth interval is too wide to show a bounded backlog: more replications or longer runs decide' : ''}`,
     ]);
   }
   if (summary.livelocks || summary.gridlocks) rows.push(['deadlocks, livelocks, gridlocks', `per replication: ${intervalText(summary.deadlocks, 2)} deadlocks, ${intervalText(summary.livelocks, 2)} livelocks, ${intervalText(summary.gridlocks, 2)} fleet gridlocks; ${intervalText(summary.deadlockRobotHoursLost, 2)} robot-hours lost`]);
