@@ -296,7 +296,10 @@ describe('size and sweep pages in Chromium', () => {
       const [robots, rate, replications, throughput, lead, stable] = cells;
       const row = rows[i];
       expect([robots, rate, replications]).toEqual([row['fleet.robots'], row['demand.tasksPerHour'], row.replications]);
-      expect(throughput).toBe(`${Number(row.throughputPerHourMean).toFixed(1)} ± ${Number(row.throughputPerHourHalfWidth).toFixed(1)}`);
+      // An interval clipped at 0 is shown by its ends, else as mean ± half-width.
+      const [mean, halfWidth, low, high] = ['Mean', 'HalfWidth', 'Low', 'High'].map((k) => Number(row[`throughputPerHour${k}`]));
+      const clipped = Math.abs(low - (mean - halfWidth)) > 1e-3;
+      expect(throughput).toBe(clipped ? `${mean.toFixed(1)} (${low.toFixed(1)}–${high.toFixed(1)})` : `${mean.toFixed(1)} ± ${halfWidth.toFixed(1)}`);
       if (row.stable === 'false') {
         expect(row.stabilityVerdict).toBe('unstable');
         expect(stable).toMatch(/^NO: backlog grew/);

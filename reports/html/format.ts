@@ -18,11 +18,22 @@ export function percent(value: number | null | undefined, digits = 1): string {
   return typeof value === 'number' && Number.isFinite(value) ? `${(value * 100).toFixed(digits)}%` : dash;
 }
 
-/** `412.3 ± 9.1`, or the mean alone when no honest interval exists. */
+/**
+ * `412.3 ± 9.1`; an interval whose ends were clipped to the figure's range (a share cannot
+ * pass 0 or 1, a count cannot go below 0) as `10.0 (0.0–37.4)`, its ends written out, so a
+ * reader never sees a half-width that reaches past what the figure can take; the mean alone
+ * when no honest interval exists.
+ */
 export function intervalText(interval: IntervalLike | null | undefined, digits: number, scale = 1): string {
   if (!interval || interval.mean === null || !Number.isFinite(interval.mean)) return dash;
   const mean = (interval.mean * scale).toFixed(digits);
-  return interval.halfWidth === null || !Number.isFinite(interval.halfWidth) ? `${mean} (no interval)` : `${mean} ± ${(interval.halfWidth * scale).toFixed(digits)}`;
+  const halfWidth = interval.halfWidth;
+  if (halfWidth === null || !Number.isFinite(halfWidth)) return `${mean} (no interval)`;
+  const { low, high } = interval;
+  const tolerance = 1e-9 * Math.max(1, Math.abs(interval.mean), Math.abs(halfWidth));
+  const clipped =
+    typeof low === 'number' && typeof high === 'number' && (Math.abs(low - (interval.mean - halfWidth)) > tolerance || Math.abs(high - (interval.mean + halfWidth)) > tolerance);
+  return clipped ? `${mean} (${(low! * scale).toFixed(digits)}–${(high! * scale).toFixed(digits)})` : `${mean} ± ${(halfWidth * scale).toFixed(digits)}`;
 }
 
 /** Seconds as `1 h 30 min`, `12 min`, `45 s` for headings. */
