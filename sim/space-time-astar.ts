@@ -46,14 +46,30 @@
  * `maxExpansions`; a search that exceeds it, or would end later than `horizon - 2` ticks
  * after its start (less the hold), fails and returns null.
  *
- * Headings (later): a state would be (cell, heading, safe interval), with the interval's
- * earliest tick kept per heading (`intervalBest` indexed interval x headings, a node
- * carrying its heading), a turn successor (same cell and interval, t + turn ticks, within
- * the interval) and moves along the heading only; safe intervals stay per cell, so the
- * table, `touch` and the interval scan in `generate` stay as they are.
+ * Headings (forward-only robots that turn in place, `turnTicks` > 0, sim/headings.ts): a
+ * state is (cell, heading, safe interval) with the interval's earliest tick kept per
+ * heading (`intervalBest` indexed interval x 4 + heading). Successors are the move to the
+ * neighbour ahead (the heading does not change) and a quarter turn either way, which keeps
+ * the robot in its cell and interval for `turnTicks` ticks (it must fit in the interval:
+ * the robot holds the cell while turning); a half turn is two quarter turns. Turning as
+ * early as possible is never worse (the robot holds its cell either way), so the earliest
+ * tick per state stays exact, as in SIPP. The heuristic adds a geometric lower bound on
+ * the quarter turns still needed (sim/headings.ts, `turnsLowerBound`) x `turnTicks`: a
+ * robot must face every direction in which the goal lies, each quarter turn changes the
+ * heading by one, and a forward move never lowers that bound, so it stays admissible and
+ * consistent. The goal is reached with any heading; the robot does not turn while it is
+ * loaded or unloaded, so the next leg starts from the goal with the arrival heading
+ * (`lastHeading`). Safe intervals stay per cell: the table, `touch` and the interval scan
+ * in `generate` are unchanged. With `turnTicks` 0 there is one heading and the search is
+ * the one without headings, expansion for expansion.
+ *
+ * Start: the robot stands on `start` from `startTick`; a robot still turning or held back
+ * (`readyTick` > startTick) can act only from `readyTick`, and the start cell's interval
+ * must last until then.
  */
 import type { Layout } from './layout.ts';
 import { unreachable } from './distance-table.ts';
+import { turnsLowerBound } from './headings.ts';
 import { foreverTick, type ReservationTable } from './reservation-table.ts';
 
 export interface SearchRequest {
@@ -66,6 +82,10 @@ export interface SearchRequest {
   /** Ticks the robot must be able to stay on the goal after arriving; ignored when restForever. */
   holdTicks: number;
   restForever: boolean;
+  /** The robot's heading at the start (forward-only robots; ignored when turning takes no time). Default 0. */
+  startHeading?: number;
+  /** First tick at which the robot can turn or move (after a turn or hold in progress). Default startTick. */
+  readyTick?: number;
 }
 
 const never = foreverTick;
@@ -76,14 +96,17 @@ export class SpaceTimeAStar {
   private nodeInterval = new Int32Array(1024);
   private nodeTick = new Int32Array(1024);
   private nodeParent = new Int32Array(1024);
+  private nodeHeading = new Uint8Array(1024);
   private nodes = 0;
   private heapNode = new Int32Array(1024);
   private heapKey = new Float64Array(1024);
   private heapSize = 0;
-  // Safe intervals of the cells touched by this search: [lo, hi] and the earliest tick reached.
+  // Safe intervals of the cells touched by this search: [lo, hi] and the earliest tick reached (per heading).
   private intervalLo = new Int32Array(1024);
   private intervalHi = new Int32Array(1024);
-  private intervalBest = new Int32Array(1024);
+  private intervalBest: Int32Array;
+  /** Headings per state: 4 for forward-only robots, 1 when turning takes no time. */
+  private readonly headings: number;
   private intervalsUsed = 0;
   private readonly cellStamp: Int32Array;
   private readonly cellFirst: Int32Array;
@@ -114,6 +137,8 @@ export class SpaceTimeAStar {
   private goal = 0;
   private lastTick = 0;
   private heuristic: Int32Array = new Int32Array(0);
+  /** Heading at the goal after the last successful search (the last move's, or the start heading). */
+  lastHeading = 0;
   /** Searches that the reachability pass ended. */
   unreachableSkips = 0;
   /** Breadth-first labelling passes run for the reachability check. */
@@ -127,7 +152,11 @@ export class SpaceTimeAStar {
     readonly maxExpansions = 200_000,
     /** Expansions after which a search first checks that its goal is reachable at all. */
     readonly reachabilityAfter = 16,
+    /** Ticks of a quarter turn in place; 0: robots turn in no time and states carry no heading. */
+    readonly turnTicks = 0,
   ) {
+    this.headings = turnTicks > 0 ? 4 : 1;
+    this.intervalBest = new Int32Array(1024 * this.headings);
     const cells = layout.cellCount;
     this.cellStamp = new Int32Array(cells);
     this.cellFirst = new Int32Array(cells);
@@ -147,6 +176,10 @@ export class SpaceTimeAStar {
     const table = this.table;
     this.searches++;
     const { robot, start, startTick, goal, heuristic, holdTicks, restForever } = request;
+    const headings = this.headings;
+    const startHeading = headings === 4 ? (request.startHeading ?? 0) : 0;
+    const readyTick = Math.max(startTick, request.readyTick ?? startTick);
+    this.lastHeading = startHeading;
     if (heuristic[start] >= unreachable) return null;
     // A goal another robot rests on forever can never satisfy a rest; fail without searching.
     if (restForever && table.endRobot[goal] >= 0 && table.endRobot[goal] !== robot) return null;
@@ -192,8 +225,10 @@ export class SpaceTimeAStar {
     } else {
       this.intervalLo[first] = startTick;
     }
-    this.intervalBest[startInterval] = startTick;
-    this.push(start, startInterval, startTick, -1);
+    // A robot still turning or held acts only from readyTick, on its start cell until then.
+    if (readyTick > this.intervalHi[startInterval]) return null;
+    this.intervalBest[startInterval * headings + startHeading] = readyTick;
+    this.push(start, startInterval, startHeading, readyTick, -1);
 
     const neighbors = this.layout.neighbors;
     let expanded = 0;
@@ -208,11 +243,13 @@ export class SpaceTimeAStar {
       const tick = this.nodeTick[node];
       if (cell === goal) {
         this.expansions += expanded;
+        this.lastHeading = this.nodeHeading[node];
         return this.trace(node);
       }
       const interval = this.nodeInterval[node];
+      const heading = this.nodeHeading[node];
       // A later copy of a state already reached earlier: nothing new to expand.
-      if (tick > this.intervalBest[interval]) continue;
+      if (tick > this.intervalBest[interval * headings + heading]) continue;
       if (++expanded > this.maxExpansions) break;
       if (!checked && expanded > lazyAfter) {
         checked = true;
@@ -226,10 +263,26 @@ export class SpaceTimeAStar {
       }
       const leaveBy = this.intervalHi[interval] + 1;
       const base = cell * 4;
-      for (let d = 0; d < 4; d++) {
-        const n = neighbors[base + d];
-        if (n < 0 || heuristic[n] >= unreachable) continue;
-        this.generate(node, cell, tick, leaveBy, n);
+      if (headings === 1) {
+        for (let d = 0; d < 4; d++) {
+          const n = neighbors[base + d];
+          if (n < 0 || heuristic[n] >= unreachable) continue;
+          this.generate(node, cell, tick, leaveBy, n, 0);
+        }
+        continue;
+      }
+      // Forward-only: the cell ahead, or a quarter turn either way within the cell's interval.
+      const ahead = neighbors[base + heading];
+      if (ahead >= 0 && heuristic[ahead] < unreachable) this.generate(node, cell, tick, leaveBy, ahead, heading);
+      const turned = tick + this.turnTicks;
+      if (turned <= this.intervalHi[interval]) {
+        for (let side = 1; side < 4; side += 2) {
+          const next = (heading + side) & 3;
+          const best = interval * 4 + next;
+          if (turned >= this.intervalBest[best]) continue;
+          this.intervalBest[best] = turned;
+          this.push(cell, interval, next, turned, node);
+        }
       }
     }
     this.expansions += expanded;
@@ -240,7 +293,7 @@ export class SpaceTimeAStar {
    * Successors of `node` (at `cell` from `tick`, which it must leave by `leaveBy`) in the safe
    * intervals of neighbour `n`, or in the goal's arrival windows when n is the goal.
    */
-  private generate(node: number, cell: number, tick: number, leaveBy: number, n: number): void {
+  private generate(node: number, cell: number, tick: number, leaveBy: number, n: number, heading: number): void {
     const isGoal = n === this.goal;
     let lo: Int32Array;
     let hi: Int32Array;
@@ -268,13 +321,14 @@ export class SpaceTimeAStar {
       if (arrival === lo[i] && this.table.swaps(cell, n, arrival - 1, this.robot)) arrival++;
       if (arrival > end) continue;
       if (isGoal) {
-        this.push(n, -1, arrival, node);
+        this.push(n, -1, heading, arrival, node);
         // Later windows only arrive later.
         return;
       }
-      if (arrival >= this.intervalBest[i]) continue;
-      this.intervalBest[i] = arrival;
-      this.push(n, i, arrival, node);
+      const best = i * this.headings + heading;
+      if (arrival >= this.intervalBest[best]) continue;
+      this.intervalBest[best] = arrival;
+      this.push(n, i, heading, arrival, node);
     }
   }
 
@@ -328,7 +382,8 @@ export class SpaceTimeAStar {
     if (needed > this.intervalLo.length) this.growIntervals(needed);
     const at = this.intervalsUsed;
     const count = table.safeIntervals(cell, this.startTick + 1, this.robot, this.intervalLo, this.intervalHi, at);
-    this.intervalBest.fill(never, at, at + count);
+    const headings = this.headings;
+    this.intervalBest.fill(never, at * headings, (at + count) * headings);
     this.intervalsUsed += count;
     this.cellStamp[cell] = this.searchId;
     this.cellFirst[cell] = at;
@@ -342,25 +397,28 @@ export class SpaceTimeAStar {
     const count = this.cellCount[cell];
     if (this.intervalsUsed + 1 > this.intervalLo.length) this.growIntervals(this.intervalsUsed + 1);
     // The start cell is the first touched, so its intervals are the last in the pool.
+    const headings = this.headings;
     this.intervalLo.copyWithin(at + 1, at, at + count);
     this.intervalHi.copyWithin(at + 1, at, at + count);
-    this.intervalBest.copyWithin(at + 1, at, at + count);
+    this.intervalBest.copyWithin((at + 1) * headings, at * headings, (at + count) * headings);
     this.intervalLo[at] = lo;
     this.intervalHi[at] = hi;
-    this.intervalBest[at] = never;
+    this.intervalBest.fill(never, at * headings, (at + 1) * headings);
     this.cellCount[cell] = count + 1;
     this.intervalsUsed++;
     return at;
   }
 
-  private push(cell: number, interval: number, tick: number, parent: number): void {
+  private push(cell: number, interval: number, heading: number, tick: number, parent: number): void {
     if (this.nodes === this.nodeCell.length) this.growNodes();
     const node = this.nodes++;
     this.nodeCell[node] = cell;
     this.nodeInterval[node] = interval;
     this.nodeTick[node] = tick;
     this.nodeParent[node] = parent;
-    const distance = this.heuristic[cell];
+    this.nodeHeading[node] = heading;
+    let distance = this.heuristic[cell];
+    if (this.headings === 4) distance += this.turnTicks * turnsLowerBound(this.layout.width, cell, heading, this.goal);
     const arrival = this.ready(tick + distance);
     if (arrival > this.lastTick) return; // the goal cannot be reached in time from here
     const g = tick - this.startTick;
@@ -512,7 +570,8 @@ export class SpaceTimeAStar {
     const path = new Int32Array(this.nodeTick[node] - startTick + 1);
     let end = path.length;
     for (let n = node; n >= 0; n = this.nodeParent[n]) {
-      const from = this.nodeTick[n] - startTick;
+      // The root may start after startTick (a robot still turning or held): it stood there from startTick.
+      const from = this.nodeParent[n] < 0 ? 0 : this.nodeTick[n] - startTick;
       path.fill(this.nodeCell[n], from, end);
       end = from;
     }
@@ -522,7 +581,7 @@ export class SpaceTimeAStar {
   /** Bytes held in typed arrays (for benchmarks). */
   memoryBytes(): number {
     const arrays = [
-      this.nodeCell, this.nodeInterval, this.nodeTick, this.nodeParent, this.heapNode, this.heapKey,
+      this.nodeCell, this.nodeInterval, this.nodeTick, this.nodeParent, this.nodeHeading, this.heapNode, this.heapKey,
       this.intervalLo, this.intervalHi, this.intervalBest, this.cellStamp, this.cellFirst, this.cellCount,
       this.windowLo, this.windowHi, this.label, this.labelQueue, this.labelRest, this.passStamp,
     ];
@@ -536,7 +595,7 @@ export class SpaceTimeAStar {
     while (capacity < needed) capacity *= 2;
     this.intervalLo = resized(this.intervalLo, capacity);
     this.intervalHi = resized(this.intervalHi, capacity);
-    this.intervalBest = resized(this.intervalBest, capacity);
+    this.intervalBest = resized(this.intervalBest, capacity * this.headings);
   }
 
   private growNodes(): void {
@@ -545,6 +604,9 @@ export class SpaceTimeAStar {
     this.nodeInterval = resized(this.nodeInterval, capacity);
     this.nodeTick = resized(this.nodeTick, capacity);
     this.nodeParent = resized(this.nodeParent, capacity);
+    const headings = new Uint8Array(capacity);
+    headings.set(this.nodeHeading);
+    this.nodeHeading = headings;
     this.heapNode = resized(this.heapNode, capacity);
     const keys = new Float64Array(capacity);
     keys.set(this.heapKey);

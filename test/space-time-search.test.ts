@@ -343,3 +343,162 @@ describe('safe-interval search against a plain space-time A* (property test, fas
     expect(ask(at(35, 2))?.length).toBe(35);
   });
 });
+
+/**
+ * Forward-only robots that turn in place (sim/headings.ts): the search over (cell, heading,
+ * safe interval) must find the same earliest arrival as a plain space-time A* over (cell,
+ * heading, tick) states, written here from the definitions: a robot faces N, E, S or W,
+ * moves one cell ahead per tick or waits, and a quarter turn keeps it on its cell for
+ * `turnTicks` ticks (the cell must be free for it at each of them). A robot still turning
+ * or held at the start acts only from `readyTick`. Same reservation model as above.
+ */
+const headingStep = (width: number, heading: number) => [-width, 1, width, -1][heading];
+
+function neighbourAhead(floor: Floor, cell: number, heading: number): number {
+  const { width, height, blocked } = floor;
+  const x = cell % width;
+  const y = Math.floor(cell / width);
+  const [nx, ny] = [x + [0, 1, 0, -1][heading], y + [-1, 0, 1, 0][heading]];
+  if (nx < 0 || ny < 0 || nx >= width || ny >= height) return -1;
+  const n = cell + headingStep(width, heading);
+  return blocked[n] ? -1 : n;
+}
+
+function referenceArrivalWithHeadings(instance: Instance, reservations: ReferenceReservations, lastReservedTick: number, turnTicks: number, startHeading: number, readyTick: number, self = searcher): number | null {
+  const { start, startTick, goal, holdTicks, restForever } = instance.query;
+  const lastTick = startTick + instance.horizon - 2 - (restForever ? 0 : holdTicks);
+  const holds = (t: number) => {
+    if (restForever) return reservations.freeForever(goal, t, self, Math.max(t, lastReservedTick + 1));
+    for (let k = t; k <= t + holdTicks; k++) if (!reservations.freeFor(goal, k, self)) return false;
+    return true;
+  };
+  if (start === goal) return holds(startTick) ? startTick : null;
+  // The robot stays on its start cell until it can act.
+  for (let t = startTick + 1; t <= readyTick; t++) if (!reservations.freeFor(start, t, self)) return null;
+  const w = instance.width;
+  const h = (c: number) => Math.abs((c % w) - (goal % w)) + Math.abs(Math.floor(c / w) - Math.floor(goal / w));
+  const open: { cell: number; heading: number; tick: number; f: number }[] = [{ cell: start, heading: startHeading, tick: readyTick, f: readyTick + h(start) }];
+  const closed = new Set<string>([`${start}/${startHeading}@${readyTick}`]);
+  const add = (cell: number, heading: number, tick: number) => {
+    const key = `${cell}/${heading}@${tick}`;
+    if (closed.has(key)) return;
+    closed.add(key);
+    open.push({ cell, heading, tick, f: tick + h(cell) });
+  };
+  while (open.length > 0) {
+    let best = 0;
+    for (let i = 1; i < open.length; i++) if (open[i].f < open[best].f) best = i;
+    const { cell, heading, tick } = open.splice(best, 1)[0];
+    if (cell === goal) return tick;
+    const next = tick + 1;
+    if (next > lastTick) continue;
+    // Wait.
+    if (reservations.freeFor(cell, next, self)) add(cell, heading, next);
+    // Forward.
+    const ahead = neighbourAhead(instance, cell, heading);
+    if (ahead >= 0 && reservations.freeFor(ahead, next, self) && !reservations.swapWith(cell, ahead, tick, self) && (ahead !== goal || holds(next))) add(ahead, heading, next);
+    // Quarter turns: the cell must stay free for the robot at every tick of the turn.
+    if (tick + turnTicks <= lastTick) {
+      let free = true;
+      for (let t = next; t <= tick + turnTicks; t++) if (!reservations.freeFor(cell, t, self)) free = false;
+      if (free) for (const side of [1, 3]) add(cell, (heading + side) & 3, tick + turnTicks);
+    }
+  }
+  return null;
+}
+
+/** Checks that a path is drivable forward-only: before every move the robot had the ticks to turn to the move's direction. */
+function forwardOnlyTurnsFit(width: number, path: Int32Array, startHeading: number, readyOffset: number, turnTicks: number): boolean {
+  let heading = startHeading;
+  let runStart = readyOffset;
+  for (let k = 1; k < path.length; k++) {
+    if (path[k] === path[k - 1]) continue;
+    const direction = [-width, 1, width, -1].indexOf(path[k] - path[k - 1]);
+    const quarter = ((direction - heading) & 3) === 3 ? 1 : (direction - heading) & 3;
+    // Ticks standing on the cell since the robot could act there, before the move at k - 1 -> k.
+    if (k - 1 - runStart < quarter * turnTicks) return false;
+    heading = direction;
+    runStart = k;
+  }
+  return true;
+}
+
+describe('safe-interval search with headings against a space-time A* over (cell, heading, tick) (property test, fast-check)', () => {
+  it('finds the same earliest arrival for forward-only robots that turn in place, with paths that leave time for every turn', () => {
+    let compared = 0;
+    let found = 0;
+    let turned = 0;
+    fc.assert(
+      fc.property(fc.integer({ min: 0, max: 10_000_000 }), fc.integer({ min: 1, max: 3 }), fc.integer({ min: 0, max: 3 }), fc.integer({ min: 0, max: 3 }), (seed, turnTicks, startHeading, readyDelay) => {
+        const instance = randomInstance(seed);
+        fc.pre(instance !== null);
+        const inst = instance!;
+        const { layout, table } = productionFor(inst);
+        const search = new SpaceTimeAStar(layout, table, 200_000, 16, turnTicks);
+        inst.horizon = table.horizon;
+        const model = new ReferenceReservations();
+        inst.others.forEach((p, r) => model.add(r, p.start, p.cells));
+        const lastReserved = Math.max(0, ...inst.others.map((p) => p.start + p.cells.length));
+        const { start, startTick, goal, holdTicks, restForever } = inst.query;
+        const readyTick = startTick + readyDelay;
+        const expected = referenceArrivalWithHeadings(inst, model, lastReserved, turnTicks, startHeading, readyTick);
+        const path = search.search({ robot: searcher, start, startTick, goal, heuristic: distanceTable(layout, goal), holdTicks, restForever, startHeading, readyTick });
+        compared++;
+        expect(path === null ? null : startTick + path.length - 1).toBe(expected);
+        if (!path) return;
+        found++;
+        expect(path[0]).toBe(start);
+        expect(path[path.length - 1]).toBe(goal);
+        if (start !== goal) expect(forwardOnlyTurnsFit(inst.width, path, startHeading, readyDelay, turnTicks)).toBe(true);
+        let heading = startHeading;
+        for (let k = 1; k < path.length; k++) {
+          const t = startTick + k;
+          const [a, b] = [path[k - 1], path[k]];
+          expect(a === b || neighboursOf(inst, a).includes(b)).toBe(true);
+          expect(model.freeFor(b, t, searcher)).toBe(true);
+          expect(a !== b && model.swapWith(a, b, t - 1, searcher)).toBe(false);
+          if (k < path.length - 1) expect(b).not.toBe(goal);
+          if (a !== b) {
+            const direction = [-inst.width, 1, inst.width, -1].indexOf(b - a);
+            if (direction !== heading) turned++;
+            heading = direction;
+          }
+        }
+        // The heading the search reports at the goal is the last move's.
+        if (start !== goal && path.length > 1) expect(search.lastHeading).toBe(heading);
+      }),
+      { numRuns: Number(process.env.PROPERTY_RUNS ?? 600), seed: Number(process.env.PROPERTY_SEED ?? 20261201) },
+    );
+    expect(compared).toBeGreaterThanOrEqual(400);
+    expect(found).toBeGreaterThan(compared / 3);
+    expect(turned).toBeGreaterThan(50);
+  });
+
+  it('with turnTicks 0 it is the search without headings, expansion for expansion', () => {
+    for (let seed = 0; seed < 300; seed++) {
+      const instance = randomInstance(seed);
+      if (!instance) continue;
+      const a = productionFor(instance);
+      const b = productionFor(instance);
+      const withHeadings = new SpaceTimeAStar(b.layout, b.table, 200_000, 16, 0);
+      const { start, startTick, goal, holdTicks, restForever } = instance.query;
+      const heuristic = distanceTable(a.layout, goal);
+      const plain = a.search.search({ robot: searcher, start, startTick, goal, heuristic, holdTicks, restForever });
+      const zero = withHeadings.search({ robot: searcher, start, startTick, goal, heuristic, holdTicks, restForever, startHeading: 2 });
+      expect(zero === null ? null : Array.from(zero)).toEqual(plain === null ? null : Array.from(plain));
+      expect(withHeadings.expansions).toBe(a.search.expansions);
+    }
+  });
+
+  it('a robot facing away from its goal down a corridor turns twice before it drives (hand-worked)', () => {
+    // 1 x 6 corridor, robot at x = 0 facing west (a wall), goal at x = 5, quarter turn 2
+    // ticks: turn to north then east (4 ticks, both walls, still allowed: turning needs no
+    // room), then 5 moves: arrival at tick 9.
+    const layout = buildLayout(6, 1, new Uint8Array(6).fill(CellKind.Floor));
+    const table = new ReservationTable(layout.cellCount, 1, 64);
+    const search = new SpaceTimeAStar(layout, table, 200_000, 16, 2);
+    const path = search.search({ robot: 0, start: 0, startTick: 0, goal: 5, heuristic: distanceTable(layout, 5), holdTicks: 0, restForever: false, startHeading: 3, readyTick: 0 });
+    expect(path === null ? null : Array.from(path)).toEqual([0, 0, 0, 0, 0, 1, 2, 3, 4, 5]);
+    expect(search.lastHeading).toBe(1);
+  });
+});
