@@ -18,7 +18,7 @@ import { isMap, isScalar, isSeq, LineCounter, parseDocument, type Document } fro
 import { z } from 'zod';
 import { InputError } from '../sim/errors.ts';
 import { CellKind, cellLabel, componentLabels, describeCell, isEndpointKind, LayoutError, parseCellLabel, parseLayout, type Layout } from '../sim/layout.ts';
-import { defaultBattery, defaultRun, type BatterySpec, type BreakdownSpec, type DemandMode, type DemandSpec, type HandlingSpec, type PointChoice, type Scenario, type StationHandling, type TraceTask } from '../sim/model.ts';
+import { defaultBattery, defaultRun, type BatterySpec, type BreakdownSpec, type DelaySpec, type DemandMode, type DemandSpec, type HandlingSpec, type PointChoice, type Scenario, type StationHandling, type TraceTask } from '../sim/model.ts';
 
 /** Command-line options that override scenario fields (DESIGN §7). */
 export interface ScenarioOverrides {
@@ -121,10 +121,16 @@ export function parseScenarioText(text: string, sourcePath: string | null, overr
   const stations = normalizeStationHandling(handling, mode, layout, context);
   const battery = fields.fleet.battery === undefined ? undefined : normalizeBattery(fields.fleet.battery, layout, context);
   const breakdowns = fields.faults?.breakdowns === undefined ? undefined : normalizeBreakdowns(fields.faults.breakdowns);
+  const delays = fields.faults?.delays === undefined ? undefined : toDelaySpec(fields.faults.delays);
   return {
     name: fields.name ?? (sourcePath === null ? 'scenario' : path.basename(sourcePath).replace(/\.ya?ml$/i, '')),
     sourcePath: absoluteSource,
-    units: { cellMeters: fields.units?.cellMeters ?? 1, robotSpeedMps: fields.units?.robotSpeedMps ?? 1 },
+    units: {
+      cellMeters: fields.units?.cellMeters ?? 1,
+      robotSpeedMps: fields.units?.robotSpeedMps ?? 1,
+      // Kept only when given, so scenarios without it hash and echo exactly as before.
+      ...(fields.units?.turnSeconds === undefined ? {} : { turnSeconds: fields.units.turnSeconds }),
+    },
     layoutText: fields.layout,
     handling: {
       pickupSeconds: toHandlingSpec(handling.pickupSeconds),
@@ -132,7 +138,7 @@ export function parseScenarioText(text: string, sourcePath: string | null, overr
       ...(stations === undefined ? {} : { stations }),
     },
     fleet: { robots, ...(battery === undefined ? {} : { battery }) },
-    ...(breakdowns === undefined ? {} : { faults: { breakdowns } }),
+    ...(breakdowns === undefined && delays === undefined ? {} : { faults: { ...(breakdowns === undefined ? {} : { breakdowns }), ...(delays === undefined ? {} : { delays }) } }),
     demand,
     policy: { name: policyName, options: policyOptions },
     run: {
@@ -244,8 +250,6 @@ const batterySchema = strict(
 
 const breakdownsSchema = strict({ mtbfHours: durationSchema('hours'), mttrMinutes: durationSchema('minutes') }, 'a mapping {mtbfHours, mttrMinutes}');
 
-const faultsSchema = strict({ breakdowns: breakdownsSchema.optional() }, 'a mapping {breakdowns}');
-
 const stationHandlingSchema = strict(
   { pickupSeconds: handlingSecondsSchema.optional(), dropSeconds: handlingSecondsSchema.optional() },
   'a mapping {pickupSeconds, dropSeconds}',
@@ -268,6 +272,41 @@ const handlingSchema = strict(
   },
   'a mapping {pickupSeconds, dropSeconds, groups, stations}',
 );
+
+/** A delay in seconds: like a handling time, but with a positive mean (a delay of nothing is no delay). */
+const delaySecondsSchema = z.union(
+  [
+    positiveNumber('a number of seconds > 0'),
+    z.discriminatedUnion(
+      'dist',
+      [
+        strict({ dist: z.literal('fixed'), seconds: positiveNumber('a number of seconds > 0') }, 'a mapping', ' (for dist: fixed)'),
+        strict(
+          { dist: z.literal('uniform'), min: nonNegativeNumber('a number of seconds >= 0'), max: positiveNumber('a number of seconds > 0') },
+          'a mapping',
+          ' (for dist: uniform)',
+        ).superRefine((value, context) => {
+          if (value.min > value.max) {
+            context.addIssue({ code: 'custom', path: ['max'], message: `a number of seconds >= min (${value.min})`, input: value.max });
+          }
+        }),
+        strict({ dist: z.literal('exponential'), mean: positiveNumber('a mean in seconds > 0') }, 'a mapping', ' (for dist: exponential)'),
+      ],
+      { error: 'dist: fixed, uniform or exponential' },
+    ),
+  ],
+  { error: 'a number of seconds > 0, or {dist: uniform, min, max}, {dist: exponential, mean} or {dist: fixed, seconds}' },
+);
+
+const delaysSchema = strict(
+  {
+    probabilityPerMove: numberWhere('a probability >= 0 and < 1 (the chance that a move is held back)', (v) => v >= 0 && v < 1),
+    seconds: delaySecondsSchema,
+  },
+  'a mapping {probabilityPerMove, seconds}',
+);
+
+const faultsSchema = strict({ breakdowns: breakdownsSchema.optional(), delays: delaysSchema.optional() }, 'a mapping {breakdowns, delays}');
 
 const weightsSchema = z
   .record(z.string(), nonNegativeNumber('a weight >= 0'), { error: 'a mapping of cells "x:y" to weights >= 0' })
@@ -368,8 +407,9 @@ const scenarioShape = {
     {
       cellMeters: positiveNumber('a cell size in meters > 0').optional(),
       robotSpeedMps: positiveNumber('a speed in meters per second > 0').optional(),
+      turnSeconds: nonNegativeNumber('a number of seconds >= 0 (a 90-degree turn in place; 0: no turning time)').optional(),
     },
-    'a mapping {cellMeters, robotSpeedMps}',
+    'a mapping {cellMeters, robotSpeedMps, turnSeconds}',
   ).optional(),
   layout: z
     .string({ error: 'the floor as text rows of the characters .#PDSHC (a block: layout: |)' })
@@ -872,6 +912,11 @@ function toDurationSeconds(value: ParsedDuration, unitSeconds: number): Handling
 
 function normalizeBreakdowns(breakdowns: NonNullable<NonNullable<ParsedScenario['faults']>['breakdowns']>): BreakdownSpec {
   return { timeToFailure: toDurationSeconds(breakdowns.mtbfHours, 3600), repair: toDurationSeconds(breakdowns.mttrMinutes, 60) };
+}
+
+function toDelaySpec(value: z.output<typeof delaysSchema>): DelaySpec {
+  const seconds = value.seconds;
+  return { probabilityPerMove: value.probabilityPerMove, seconds: typeof seconds === 'number' ? { dist: 'fixed', seconds } : seconds };
 }
 
 function toHandlingSpec(value: ParsedHandling): HandlingSpec {

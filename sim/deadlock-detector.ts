@@ -14,7 +14,8 @@
  * four robots and can go on when any one of them moves (the OR model of the wait-for graph:
  * a deadlock is a knot, not merely a cycle; Holt 1972).
  *
- * Each tick every robot is one of: in service (handling), moving, free (standing with a way
+ * Each tick every robot is one of: in service (handling, turning in place, or held back by
+ * an execution delay: it goes on by itself), moving, free (standing with a way
  * open), blocked (waiting on robots), or idle and still (no task, not moving: it goes on
  * only when its policy moves it). Sinks through which a blocked robot can go on are robots
  * in service, moving or free. Blocked robots that reach such a sink through the graph are in
@@ -256,7 +257,7 @@ export class DeadlockDetector {
 
       this.waitCount[r] = 0;
       if (world.mayTakeTask(r)) idle++;
-      // Handling, charging or broken down: in service, a robot others queue behind.
+      // Handling, charging, broken down, turning or held back by a delay: in service, a robot others queue behind.
       if (world.isFixed(r)) {
         status[r] = WaitStatus.Handling;
         continue;

@@ -8,9 +8,24 @@
  * stretches (night shifts, low demand) cost one event, not one tick each.
  *
  * Random streams: one seedrandom stream per purpose (arrivals, pickup choice, drop choice,
- * handling times, policy), each seeded from (seed, replication, purpose), so two policies
- * run on one seed see the same task stream (common random numbers). Handling times are
- * drawn when a task is released, in release order, for the same reason.
+ * handling times, policy, delays), each seeded from (seed, replication, purpose), so two
+ * policies run on one seed see the same task stream (common random numbers). Handling
+ * times are drawn when a task is released, in release order, for the same reason.
+ *
+ * Turning (`units.turnSeconds`, sim/headings.ts): robots drive forward only. A policy turns
+ * a standing robot by writing its new heading into `turns` at a step; the engine holds it
+ * on its cell for the quarter turns x turn ticks, and the validator counts as illegal a
+ * step against a robot's heading or before its turn ended, and a turn the engine refuses
+ * (while handling, moving or held). The engine never delays a move on its own: a policy
+ * that forgets a turn fails the run.
+ *
+ * Execution delays (`faults.delays`, sim/move-delays.ts): after the policy's step, every
+ * robot that starts a move draws whether the move is held back; a held robot stays on its
+ * cell for the delay (fixed, like a handling robot: `world.isFixed`), and the policy is
+ * asked again at the same tick with the held robots fixed, so that it moves no other robot
+ * into their cells (planned policies keep their robots' passing order through an action
+ * dependency graph, sim/plan-execution.ts). Robots already drawn at this tick are not drawn
+ * again.
  */
 import seedrandom from 'seedrandom';
 import type { Scenario } from './model.ts';
@@ -31,6 +46,8 @@ import type { RecordedUpkeepMetrics } from './upkeep-metrics.ts';
 import { TaskTiming, type RecordedTaskTiming } from './task-timing.ts';
 import { RunError } from './errors.ts';
 import { restSpotsForFleet } from './rest-cells.ts';
+import { initialHeading, quarterTurns, turnTicksOf } from './headings.ts';
+import { MoveDelays } from './move-delays.ts';
 
 // Read once: imported bindings are getters under the TypeScript loader (measured: 4-6% of a
 // token-passing run went to them), and these are read per robot per tick.
@@ -104,6 +121,8 @@ export interface ReplicationRecord {
   shelvesAccounted: number;
   /** Shelves standing on their storage points at the end (round trips). */
   shelvesAtStorage: number;
+  /** Turning and execution delays; null when the scenario has neither (robots turn in no time, no delays). */
+  execution: ExecutionRecord | null;
   /** Wall-clock figures: the only part of a record that differs between identical runs. */
   timing: { wallSeconds: number; planningSeconds: number };
   /** Lead-time parts and the hourly profile of delivered tasks (sim/task-timing.ts). */
@@ -118,6 +137,19 @@ export interface UpkeepRecord {
   chargerCells: Int32Array;
   /** Robots whose charge reached 0 at least once. */
   ranFlatRobots: number;
+}
+
+/** Whole-run counts of turning in place and of held-back moves. */
+export interface ExecutionRecord {
+  /** Ticks of one quarter turn (0: robots turn in no time). */
+  turnTicks: number;
+  /** Quarter turns the robots made. */
+  quarterTurns: number;
+  /** Moves started (each drew whether it is held back); 0 without delays. */
+  moveAttempts: number;
+  /** Moves held back, and the robot-ticks they were held. */
+  heldMoves: number;
+  heldTicks: number;
 }
 
 export interface ReplicationHooks {
@@ -183,6 +215,17 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
   const world = new World(layout, robots);
   placeRobots(world, layout);
   const validator = new CollisionValidator(layout, world.robotCell);
+  // Forward-only robots (turning takes time) and held-back moves, when the scenario has them.
+  const turnTicks = turnTicksOf(scenario.units.turnSeconds, tickSeconds);
+  world.turnTicks = turnTicks;
+  if (turnTicks > 0) {
+    world.robotHeading.fill(initialHeading);
+    validator.enableHeadings(initialHeading);
+  }
+  const delaySpec = scenario.faults?.delays;
+  const moveDelays = delaySpec ? new MoveDelays(delaySpec, tickSeconds, streamFor(run.seed, replication, 'delays')) : null;
+  world.movesMayBeHeld = moveDelays !== null;
+  let quarterTurnCount = 0;
 
   // Random streams, one per purpose.
   const seed = run.seed;
@@ -491,11 +534,70 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     : null;
   const upkeepCategory = upkeep?.category ?? null;
   const moves = new Int32Array(robots);
+  const turns = new Int8Array(robots).fill(-1);
+  /** Tick at which each robot last drew whether its move is held back (one draw per robot per tick). */
+  const delayDrawnAt = new Int32Array(robots).fill(-1);
   const wantedCells = policy.wantedCells ?? null;
   let wantedFresh = false;
   let planningMs = 0;
   let motionTicks = 0;
   let accountedUntil = 0;
+
+  /**
+   * Execution delays: every robot that starts a move draws whether it is held back; while
+   * some are, the policy decides again with them fixed (robots drawn at this tick keep
+   * their draw). Returns the policy's last wanted tick.
+   */
+  const holdBackMoves = (t: number, wanted: number): number => {
+    const cells = world.robotCell;
+    for (;;) {
+      let held = 0;
+      for (let r = 0; r < robots; r++) {
+        if (moves[r] === cells[r] || delayDrawnAt[r] === t || world.isFixed(r)) continue;
+        delayDrawnAt[r] = t;
+        const ticks = moveDelays!.draw();
+        if (ticks === 0) continue;
+        world.robotHeldUntil[r] = t + ticks;
+        queue.schedule(t + ticks, EventKind.Wake, EventKind.Wake);
+        held++;
+      }
+      if (held === 0) return wanted;
+      for (let r = 0; r < robots; r++) moves[r] = cells[r];
+      if (wantedCells) wantedCells.fill(-1);
+      if (turnTicks > 0) turns.fill(-1);
+      wanted = policy.step(t, moves, turns);
+    }
+  };
+
+  /** Carries out the turns the policy asked for; refused ones (handling, held, moving, mid-turn) are illegal steps. */
+  const applyTurns = (t: number): void => {
+    for (let r = 0; r < robots; r++) {
+      const heading = turns[r];
+      if (heading < 0) continue;
+      if (heading > 3) {
+        validator.refused(r, t, `asked for heading ${heading} (expected 0-3)`);
+        continue;
+      }
+      if (world.robotTurnUntil[r] > t) {
+        if (heading !== world.robotHeading[r]) validator.refused(r, t, 'started a turn before its last one ended');
+        continue;
+      }
+      if (handlingPhase(world.robotPhase[r]) || world.robotHeldUntil[r] > t) {
+        validator.refused(r, t, handlingPhase(world.robotPhase[r]) ? 'turned while being loaded or unloaded' : 'turned while its move was held back');
+        continue;
+      }
+      if (moves[r] !== world.robotCell[r]) {
+        validator.refused(r, t, 'turned and moved in one step');
+        continue;
+      }
+      const quarter = quarterTurns(world.robotHeading[r], heading);
+      if (quarter === 0) continue;
+      world.robotHeading[r] = heading;
+      world.robotTurnUntil[r] = t + quarter * turnTicks;
+      validator.turned(r, heading, t + quarter * turnTicks);
+      quarterTurnCount += quarter;
+    }
+  };
 
   const accountStill = (from: number, to: number): void => {
     if (to <= from) return;
@@ -534,8 +636,9 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
       const from = cells[r];
       if (upkeepCategory !== null && upkeepCategory[r] !== UpkeepCategory.None) {
         // Counted by the upkeep's own recorder. Broken and charging robots stay where they
-        // are; robots going to (or waiting for) a charger move as the policy says.
-        if (world.isFixed(r)) continue;
+        // are (and so does a robot whose move is held back); robots going to (or waiting
+        // for) a charger move as the policy says.
+        if (world.isFixed(r) || world.robotHeldUntil[r] >= t) continue;
         const to = moves[r];
         if (to === from) continue;
         if (occupant[from] === r) occupant[from] = -1;
@@ -546,9 +649,15 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
         handling++;
         continue;
       }
-      const to = moves[r];
+      // A held-back move keeps the robot where it is, whatever the policy wrote (checked by tick: no call per robot).
+      const held = world.robotHeldUntil[r] >= t;
+      const to = held ? from : moves[r];
       if (to === from) {
-        if (phase === phaseIdle) parked++;
+        if (world.robotTurnUntil[r] >= t) {
+          // Turning in place is travel (Groover's cycle time counts it in the travel term).
+          if (loadedPhase(phase)) loaded++;
+          else empty++;
+        } else if (phase === phaseIdle) parked++;
         else {
           waiting++;
           metrics.cellWaitingTicks[from]++;
@@ -646,12 +755,15 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
       upkeep?.beforePolicy(tick);
       for (let r = 0; r < robots; r++) moves[r] = world.robotCell[r];
       if (wantedCells) wantedCells.fill(-1);
+      if (turnTicks > 0) turns.fill(-1);
       const planStart = performance.now();
-      wanted = policy.step(tick, moves);
+      wanted = policy.step(tick, moves, turns);
+      if (moveDelays !== null) wanted = holdBackMoves(tick, wanted);
       planningMs += performance.now() - planStart;
       wantedFresh = wantedCells !== null;
+      if (turnTicks > 0) applyTurns(tick);
       for (let r = 0; r < robots; r++) {
-        if (moves[r] !== world.robotCell[r] && !world.isFixed(r)) {
+        if ((moves[r] !== world.robotCell[r] && !world.isFixed(r)) || world.robotTurnUntil[r] > tick) {
           anyMove = true;
           break;
         }
@@ -727,6 +839,16 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     policyCounters: policy.counters?.() ?? {},
     shelvesAccounted: home + shelvesOnRobots,
     shelvesAtStorage: home,
+    execution:
+      turnTicks > 0 || moveDelays !== null
+        ? {
+            turnTicks,
+            quarterTurns: quarterTurnCount,
+            moveAttempts: moveDelays?.attempts ?? 0,
+            heldMoves: moveDelays?.heldMoves ?? 0,
+            heldTicks: moveDelays?.heldTicks ?? 0,
+          }
+        : null,
     timing: { wallSeconds: (performance.now() - wallStart) / 1000, planningSeconds: planningMs / 1000 },
     taskTiming: taskTiming.toRecorded(),
     upkeep: upkeep === null ? null : { metrics: upkeep.metrics.toRecorded(), chargerCells: layout.chargers, ranFlatRobots: upkeep.ranFlatRobots.size },

@@ -79,18 +79,30 @@ export interface BreakdownSpec {
   repair: HandlingSpec;
 }
 
+/**
+ * Execution delays (`faults.delays`, Ma, Kumar & Koenig, "Multi-Agent Path Finding with
+ * Delay Probabilities", AAAI 2017): every time a robot starts a move, with probability
+ * `probabilityPerMove` the move is held back for a duration drawn from `seconds` (rounded
+ * to whole ticks like handling times); the robot then tries again.
+ */
+export interface DelaySpec {
+  probabilityPerMove: number;
+  seconds: HandlingSpec;
+}
+
 export interface Scenario {
   name: string;
   /** Absolute path of the scenario file, or null when built in code. */
   sourcePath: string | null;
-  units: { cellMeters: number; robotSpeedMps: number };
+  /** `turnSeconds`: time of a 90-degree turn in place (forward-only robots, sim/headings.ts); absent or 0: robots turn in no time. */
+  units: { cellMeters: number; robotSpeedMps: number; turnSeconds?: number };
   layoutText: string;
   /** `stations`: per-station overrides keyed by cell index (absent: none). */
   handling: { pickupSeconds: HandlingSpec; dropSeconds: HandlingSpec; stations?: Map<number, StationHandling> };
   /** `battery` absent: robots never charge. */
   fleet: { robots: number; battery?: BatterySpec };
   /** Absent: no faults. */
-  faults?: { breakdowns?: BreakdownSpec };
+  faults?: { breakdowns?: BreakdownSpec; delays?: DelaySpec };
   demand: DemandSpec;
   policy: { name: string; options: Record<string, unknown> };
   run: RunSpec;

@@ -19,6 +19,13 @@
  * failed. Use `world.mayTakeTask(r)` before giving a task, `world.isFixed(r)` for robots
  * that cannot move, `world.restsLikeIdle(r)` for robots that should go and rest.
  *
+ * Execution delays (`world.movesMayBeHeld`): the engine may hold back a move the policy
+ * wrote; it then calls `step` again at the same tick with that robot fixed
+ * (`world.isFixed(r)`, `world.robotHeldUntil`), so the policy must tolerate a second call
+ * per tick and must not move another robot into a fixed robot's cell. Planned policies
+ * follow their paths through sim/plan-execution.ts, which keeps the planned passing order
+ * of every cell (an action dependency graph).
+ *
  * Handling convention: a robot that reaches its pickup (drop, return) cell at tick t starts
  * handling at once and stays on the cell through tick t + h, h the task's handling ticks;
  * it may move again from t + h to t + h + 1. Planned policies include these waits.
@@ -32,7 +39,15 @@ import type { DistanceTables } from './distance-table.ts';
 import type { World } from './world.ts';
 
 export interface Policy {
-  step(tick: number, moves: Int32Array): number;
+  /**
+   * `turns` (one entry per robot, pre-filled with -1): with forward-only robots
+   * (`world.turnTicks` > 0, sim/headings.ts) write a heading (0-3: N, E, S, W) to turn a
+   * standing robot in place; it stays on its cell for the quarter turns x `world.turnTicks`
+   * and may move from the tick its turn ends (`world.robotTurnUntil`) to the next, forward
+   * only. A move against the heading, a move before the turn ended and a turn while
+   * handling, held or moving are illegal steps.
+   */
+  step(tick: number, moves: Int32Array, turns?: Int8Array): number;
   /**
    * Optional channel for the deadlock detector (sim/deadlock-detector.ts): one entry per
    * robot. The engine fills it with -1 before every step; for a robot that holds a task and

@@ -5,8 +5,16 @@
  * al., "Multi-Agent Pathfinding: Definitions, Variants, and Benchmarks", SoCS 2019), and
  * illegal steps (a jump to a non-adjacent cell). Following into a cell vacated in the same
  * tick is allowed. O(robots) per tick with stamp arrays; it trusts nothing a policy says.
+ *
+ * Forward-only robots (`units.turnSeconds` > 0, sim/headings.ts): it also keeps each robot's
+ * heading from the turns the engine carried out and counts as illegal a step against the
+ * heading (sideways or backwards) or one made before the robot's turn ended, and any action
+ * the engine refused (a turn while handling, moving or held back).
  */
 import { isLegalStep, type Layout } from './layout.ts';
+import { stepHeading } from './headings.ts';
+
+const headingNames = ['north', 'east', 'south', 'west'];
 
 // Read once: imported bindings are getters under the TypeScript loader, and this runs per moving robot per tick.
 const legalStep = isLegalStep;
@@ -22,6 +30,9 @@ export class CollisionValidator {
   private readonly stamp: Int32Array;
   private readonly stampHolder: Int32Array;
   private stampId = 0;
+  /** Forward-only robots: heading per robot and the tick its last turn ends; null when robots turn in no time. */
+  private heading: Uint8Array | null = null;
+  private turnEnd: Int32Array | null = null;
 
   constructor(
     private readonly layout: Layout,
@@ -32,6 +43,24 @@ export class CollisionValidator {
     for (let r = 0; r < initialCells.length; r++) this.previousHolder[initialCells[r]] = r;
     this.stamp = new Int32Array(layout.cellCount);
     this.stampHolder = new Int32Array(layout.cellCount);
+  }
+
+  /** Robots drive forward only and all start facing `initialHeading`. */
+  enableHeadings(initialHeading: number): void {
+    this.heading = new Uint8Array(this.previous.length).fill(initialHeading);
+    this.turnEnd = new Int32Array(this.previous.length).fill(-1);
+  }
+
+  /** The engine turned robot r to `heading`; the turn holds it on its cell through `untilTick`. */
+  turned(robot: number, heading: number, untilTick: number): void {
+    this.heading![robot] = heading;
+    this.turnEnd![robot] = untilTick;
+  }
+
+  /** An action the engine refused to carry out (e.g. a turn during handling): an illegal step. */
+  refused(robot: number, tick: number, what: string): void {
+    this.illegalSteps++;
+    this.note(`tick ${tick}: robot ${robot} ${what}`);
   }
 
   get collisions(): number {
@@ -49,6 +78,15 @@ export class CollisionValidator {
       if (from !== to && !legalStep(this.layout, from, to)) {
         this.illegalSteps++;
         this.note(`tick ${tick}: robot ${r} jumped from cell ${from} to ${to}`);
+      } else if (from !== to && this.heading !== null) {
+        const direction = stepHeading(this.layout, from, to);
+        if (direction !== this.heading[r]) {
+          this.illegalSteps++;
+          this.note(`tick ${tick}: robot ${r} moved ${headingNames[direction]} from cell ${from} while facing ${headingNames[this.heading[r]]}`);
+        } else if (this.turnEnd![r] >= tick) {
+          this.illegalSteps++;
+          this.note(`tick ${tick}: robot ${r} moved from cell ${from} before its turn ended (tick ${this.turnEnd![r]})`);
+        }
       }
       if (this.stamp[to] === id) {
         this.vertexCollisions++;

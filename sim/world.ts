@@ -87,6 +87,19 @@ export class World {
    * whose reserved path has not ended, `Policy.canStop`): give it no new work.
    */
   readonly robotStopPending: Uint8Array;
+  /**
+   * Heading per robot (sim/headings.ts: N, E, S, W as the layout's neighbour order), the
+   * heading being turned to while a turn lasts. Kept only when `turnTicks` > 0.
+   */
+  readonly robotHeading: Uint8Array;
+  /** Tick at which the robot's latest turn ends: it turns while the current tick is earlier, and may move from that tick to the next. */
+  readonly robotTurnUntil: Int32Array;
+  /** Tick until which a held-back move (faults.delays) keeps the robot on its cell; it may move from that tick to the next. */
+  readonly robotHeldUntil: Int32Array;
+  /** Ticks of a quarter turn in place; 0 when robots turn in no time (no headings). Set by the engine. */
+  turnTicks = 0;
+  /** True when moves may be held back (faults.delays): planned policies then follow their paths through an action dependency graph. Set by the engine. */
+  movesMayBeHeld = false;
 
   /** Slots in use or freed (the high-water mark of live tasks); ids are below it. */
   taskCount = 0;
@@ -140,12 +153,31 @@ export class World {
     this.robotCharger = new Int32Array(robots).fill(-1);
     this.robotBroken = new Uint8Array(robots);
     this.robotStopPending = new Uint8Array(robots);
+    this.robotHeading = new Uint8Array(robots);
+    this.robotTurnUntil = new Int32Array(robots).fill(-1);
+    this.robotHeldUntil = new Int32Array(robots).fill(-1);
   }
 
-  /** True while robot r cannot move whatever a policy writes: handling, charging or broken down. */
+  /**
+   * True while robot r cannot move at the current tick: handling, charging, broken down,
+   * turning in place, or held back by an execution delay. The engine keeps handling,
+   * charging, broken and held robots on their cells whatever a policy writes; a move of a
+   * turning robot is an illegal step.
+   */
   isFixed(robot: number): boolean {
     const phase = this.robotPhase[robot];
-    return isHandling(phase) || phase === Phase.Charging || this.robotBroken[robot] === 1;
+    const now = this.currentTick;
+    return isHandling(phase) || phase === Phase.Charging || this.robotBroken[robot] === 1 || this.robotTurnUntil[robot] > now || this.robotHeldUntil[robot] > now;
+  }
+
+  /** True while robot r turns in place (its turn ends after the current tick). */
+  isTurning(robot: number): boolean {
+    return this.robotTurnUntil[robot] > this.currentTick;
+  }
+
+  /** True while a held-back move keeps robot r on its cell. */
+  isHeld(robot: number): boolean {
+    return this.robotHeldUntil[robot] > this.currentTick;
   }
 
   /** True when a policy may give robot r a task: idle, working, and no breakdown pending. */

@@ -1,5 +1,5 @@
 /** Scenario objects built in code for tests (no file, no loader). */
-import type { Scenario, DemandSpec, HandlingSpec } from '../sim/model.ts';
+import type { Scenario, DemandSpec, DelaySpec, HandlingSpec } from '../sim/model.ts';
 import { defaultRun } from '../sim/model.ts';
 
 export function makeScenario(parts: {
@@ -19,16 +19,21 @@ export function makeScenario(parts: {
   recoverySeconds?: number;
   cellMeters?: number;
   robotSpeedMps?: number;
+  /** units.turnSeconds (absent: robots turn in no time). */
+  turnSeconds?: number;
+  /** faults.delays (absent: no delays). */
+  delays?: DelaySpec;
 }): Scenario {
   const handling = (h: HandlingSpec | number | undefined): HandlingSpec =>
     h === undefined ? { dist: 'fixed', seconds: 0 } : typeof h === 'number' ? { dist: 'fixed', seconds: h } : h;
   return {
     name: 'test',
     sourcePath: null,
-    units: { cellMeters: parts.cellMeters ?? 1, robotSpeedMps: parts.robotSpeedMps ?? 1 },
+    units: { cellMeters: parts.cellMeters ?? 1, robotSpeedMps: parts.robotSpeedMps ?? 1, ...(parts.turnSeconds === undefined ? {} : { turnSeconds: parts.turnSeconds }) },
     layoutText: parts.layout,
     handling: { pickupSeconds: handling(parts.pickupSeconds), dropSeconds: handling(parts.dropSeconds) },
     fleet: { robots: parts.robots },
+    ...(parts.delays === undefined ? {} : { faults: { delays: parts.delays } }),
     demand: parts.demand ?? { kind: 'saturated', mode: 'delivery', pickups: { kind: 'uniform' }, drops: { kind: 'uniform' } },
     policy: { name: parts.policy ?? 'token-passing', options: parts.policyOptions ?? {} },
     run: {

@@ -74,7 +74,7 @@ const bad: [string, Parameters<typeof yaml>[0], RegExp][] = [
   ['fixed repair time in the wrong unit', { faults: '{ breakdowns: { mtbfHours: 2, mttrMinutes: { dist: fixed, hours: 1 } } }' }, /faults\.breakdowns\.mttrMinutes\.hours \(line 11\): got unknown key "hours", expected one of dist, minutes \(for dist: fixed\)/],
   ['uniform time to failure with min > max', { faults: '{ breakdowns: { mtbfHours: { dist: uniform, min: 3, max: 2 }, mttrMinutes: 30 } }' }, /faults\.breakdowns\.mtbfHours\.max \(line 11\): got 2, expected a number of hours >= min \(3\)/],
   ['unknown key under faults', { faults: '{ breakdowns: { mtbfHours: 2, mttrMinutes: 30 }, jams: 1 }' }, /faults\.jams \(line 11\): got unknown key "jams", expected one of breakdowns/],
-  ['faults as a list', { faults: '[breakdowns]' }, /faults \(line 11\): got the list \["breakdowns"\], expected a mapping \{breakdowns\}/],
+  ['faults as a list', { faults: '[breakdowns]' }, /faults \(line 11\): got the list \["breakdowns"\], expected a mapping \{breakdowns, delays\}/],
 ];
 
 describe('operating-realism fields reject bad values with one line naming the field', () => {

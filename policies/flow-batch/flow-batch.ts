@@ -68,6 +68,12 @@
  * and a task is only taken when none of its endpoints is the rest of another robot. The
  * engine's validator checks it independently.
  *
+ * Turning and delays (sim/plan-execution.ts): with forward-only robots every search plans
+ * with headings; with execution delays robots follow their paths through an action
+ * dependency graph, and a robot is free for a dispatch or a parking plan only while it is
+ * on its plan (a robot behind it is re-planned once it has caught up, or has driven its
+ * path).
+ *
  * step() returns tick + 1 while any robot follows a path; otherwise the next epoch tick while
  * tasks are open and a robot is idle (or a parking plan must be retried), so the engine wakes
  * the policy; Infinity when there is nothing to do.
@@ -77,6 +83,7 @@ import type { Policy, PolicyContext, PolicyOptionDoc } from '../../sim/policy.ts
 import { ReservationTable } from '../../sim/reservation-table.ts';
 import { restSpotsForFleet } from '../../sim/rest-cells.ts';
 import { SpaceTimeAStar } from '../../sim/space-time-astar.ts';
+import { PlanExecution } from '../../sim/plan-execution.ts';
 import { Phase } from '../../sim/world.ts';
 import { freeParkingSpots, planRest, planTask, type ParkingAfter, type Planner } from '../shared/task-path.ts';
 import { EpochAssigner, taskEndpoints } from './epoch-assignment.ts';
@@ -110,11 +117,10 @@ export const flowBatchOptionDocs: PolicyOptionDoc[] = [
 export class FlowBatch implements Policy {
   private readonly table: ReservationTable;
   private readonly planner: Planner;
+  private readonly execution: PlanExecution;
   private readonly assigner: EpochAssigner;
   private readonly epochTicks: number;
   private nextEpoch = 0;
-  /** Tick at which each robot's reserved path ends. */
-  private readonly pathEnd: Int32Array;
   /** Robot held a task at the previous step (assignOnFree notices robots that just finished). */
   private readonly wasBusy: Uint8Array;
   /** (world version, table revision) at each robot's last fruitless parking attempt. */
@@ -156,10 +162,10 @@ export class FlowBatch implements Policy {
   ) {
     const { world, layout } = context;
     this.table = new ReservationTable(layout.cellCount, world.robotCount);
-    this.planner = { world, table: this.table, search: new SpaceTimeAStar(layout, this.table, options.maxExpansions), distances: context.distances };
+    this.planner = { world, table: this.table, search: new SpaceTimeAStar(layout, this.table, options.maxExpansions, 16, world.turnTicks), distances: context.distances };
+    this.execution = new PlanExecution(world, layout, this.table);
     this.assigner = new EpochAssigner(world.robotCount, layout.cellCount, layout.pickups.length + layout.storage.length);
     this.epochTicks = Math.max(1, Math.round(options.epochSeconds / context.tickSeconds));
-    this.pathEnd = new Int32Array(world.robotCount);
     this.wasBusy = new Uint8Array(world.robotCount);
     this.parkTriedVersion = new Float64Array(world.robotCount).fill(-1);
     this.parkTriedRevision = new Float64Array(world.robotCount).fill(-1);
@@ -183,9 +189,11 @@ export class FlowBatch implements Policy {
     find: (cell: number): number => freeParkingSpots(this.restSpots, this.context.distances, this.table, cell, this.parkingNear.spots),
   };
 
-  step(tick: number, moves: Int32Array): number {
+  step(tick: number, moves: Int32Array, turns?: Int8Array): number {
     const { world } = this.context;
     const robots = world.robotCount;
+    const execution = this.execution;
+    execution.beginStep(tick);
     this.accountHeldBack(tick);
     let justFreed = false;
     for (let r = 0; r < robots; r++) {
@@ -207,16 +215,10 @@ export class FlowBatch implements Policy {
       // Idle robots, and robots queued for a charger (they go to rest but take no task).
       if (!world.restsLikeIdle(r)) continue;
       if (world.mayTakeTask(r)) idle = true;
-      if (this.pathEnd[r] > tick || this.isRestSpot[world.robotCell[r]]) continue;
+      if (execution.pathEnd(r) > tick || this.isRestSpot[world.robotCell[r]]) continue;
       if (!this.park(r, tick)) parkingPending = true;
     }
-    let following = false;
-    for (let r = 0; r < robots; r++) {
-      if (this.pathEnd[r] > tick) {
-        moves[r] = this.table.positionAt(r, tick + 1);
-        following = true;
-      }
-    }
+    const following = execution.step(tick, moves, turns);
     this.countHeldBack();
     if (following) return tick + 1;
     // Nothing moves: wake at the next epoch while work and robots wait for each other.
@@ -266,7 +268,6 @@ export class FlowBatch implements Policy {
         const plan = planTask(this.planner, robot, cell, tick, task, this.options.restAt === 'parking' ? this.parkingNear : undefined);
         if (plan) {
           this.table.reserve(robot, plan.path, tick);
-          this.pathEnd[robot] = tick + plan.path.length - 1;
           world.assign(robot, task);
           this.wasBusy[robot] = 1;
           this.assigned++;
@@ -332,12 +333,10 @@ export class FlowBatch implements Policy {
       const path = planRest(this.planner, robot, cell, tick, spots[i]);
       if (path) {
         table.reserve(robot, path, tick);
-        this.pathEnd[robot] = tick + path.length - 1;
         return true;
       }
     }
     table.rest(robot, cell, tick);
-    this.pathEnd[robot] = tick;
     this.parkFailures++;
     this.parkRetryTick[robot] = this.nextEpoch;
     return false;
@@ -358,7 +357,6 @@ export class FlowBatch implements Policy {
     const plan = planRest(this.planner, robot, world.robotCell[robot], tick, charger);
     if (plan) {
       this.table.reserve(robot, plan, tick);
-      this.pathEnd[robot] = tick + plan.length - 1;
       return true;
     }
     this.table.reserve(robot, previous, tick);
@@ -369,7 +367,7 @@ export class FlowBatch implements Policy {
 
   /** A robot may be stopped (a breakdown) once its reserved path has ended: it rests there and no other path crosses it. */
   canStop(robot: number, tick: number): boolean {
-    return this.pathEnd[robot] <= tick;
+    return this.execution.pathEnd(robot) <= tick;
   }
 
   /** Adds the task-ticks held back since the last step. */
@@ -433,6 +431,7 @@ export class FlowBatch implements Policy {
       parkFailures: this.parkFailures,
       searches: this.planner.search.searches,
       expansions: this.planner.search.expansions,
+      ...(this.execution.dependent ? { dependencyWaits: this.execution.dependencyWaits, dependencyWaitSeconds: this.execution.dependencyWaitTicks * this.context.tickSeconds } : {}),
     };
   }
 }

@@ -14,6 +14,11 @@
  *    settled in a second pass, repeated until nothing changes.
  *  - Rest: a robot without a task heads for the nearest parking spot (`H`) that no resting
  *    robot holds and no other robot is heading for (ties in reading order), and stays.
+ *  - Forward-only robots (`world.turnTicks` > 0): a chosen move that is not to the cell
+ *    ahead becomes a turn in place towards it, and robots that were to follow into its cell
+ *    wait (policies/shared/turn-in-place.ts): the turn is paid as waiting.
+ *  - Robots that cannot move (handling, turning, held back by an execution delay) stand
+ *    still; nobody waits to follow them.
  *
  * It can deadlock: two robots head-on in a one-lane aisle wait for each other forever,
  * because the way around (a side pocket) is never on an individually shortest path. That
@@ -29,6 +34,7 @@ import { CellKind } from '../../sim/layout.ts';
 import type { Policy, PolicyContext, PolicyOptionDoc } from '../../sim/policy.ts';
 import { unreachable } from '../../sim/distance-table.ts';
 import { Phase } from '../../sim/world.ts';
+import { TurnInPlace } from '../shared/turn-in-place.ts';
 
 export const greedyReactiveOptions = z.object({}).strict();
 export type GreedyReactiveOptions = z.infer<typeof greedyReactiveOptions>;
@@ -39,8 +45,11 @@ export class GreedyReactive implements Policy {
   private readonly parkingTarget: Int32Array;
   /** Robot heading for each parking cell, or -1 (the inverse of parkingTarget). */
   private readonly parkingTakenBy: Int32Array;
-  /** claimedFor[c] === t + 1: a robot processed earlier at tick t moves into c at t + 1. */
+  /** claimedFor[c] === the current call's stamp: a robot processed earlier in this call moves into c at the next tick. */
   private readonly claimedFor: Int32Array;
+  /** One stamp per call of step: the engine calls again at the same tick when it holds a move back, and the first call's claims must not count then. */
+  private call = 0;
+  private readonly turning: TurnInPlace;
   /** The closer cell each robot waits to follow into this tick, or -1. */
   private readonly waitingOn: Int32Array;
   private readonly decidedAt: Int32Array;
@@ -56,23 +65,26 @@ export class GreedyReactive implements Policy {
     this.claimedFor = new Int32Array(layout.cellCount).fill(-1);
     this.waitingOn = new Int32Array(world.robotCount).fill(-1);
     this.decidedAt = new Int32Array(world.robotCount).fill(-1);
+    this.turning = new TurnInPlace(world, layout);
   }
 
-  step(tick: number, moves: Int32Array): number {
+  step(tick: number, moves: Int32Array, turns?: Int8Array): number {
     const { world, layout, distances } = this.context;
     const robots = world.robotCount;
     if (world.version !== this.dispatchedVersion) this.dispatch();
 
     let active = false;
-    const next = tick + 1;
+    const call = ++this.call;
+    /** Claims of this call (the next tick's cells). */
+    const next = call;
     const occupant = world.occupant;
     // Pass 1, robots in index order: move into a closer neighbour that is empty, or follow a
     // robot that has already decided to move out of it; otherwise, if a closer neighbour is
     // held by a robot not yet decided, wait on that robot (pass 2 settles it).
     for (let r = 0; r < robots; r++) {
-      this.decidedAt[r] = tick;
+      this.decidedAt[r] = call;
       this.waitingOn[r] = -1;
-      // Handling, charging or broken down: it stays, and holds its cell.
+      // Handling, charging, broken down, turning or held back: it stays, and holds its cell.
       if (world.isFixed(r)) continue;
       const cell = world.robotCell[r];
       let goal = world.goalOf(r);
@@ -93,11 +105,11 @@ export class GreedyReactive implements Policy {
         const n = layout.neighbors[base + d];
         if (n < 0 || table[n] !== closer || this.claimedFor[n] === next) continue;
         const holder = occupant[n];
-        if (holder < 0 || this.leaves(holder, n, cell, r, moves, tick)) {
+        if (holder < 0 || this.leaves(holder, n, cell, r, moves, call)) {
           chosen = n;
           break;
         }
-        if (wait < 0 && !this.settled(holder, tick) && !world.isFixed(holder)) wait = n;
+        if (wait < 0 && !this.settled(holder, call) && !world.isFixed(holder)) wait = n;
       }
       if (chosen >= 0) {
         this.claimedFor[chosen] = next;
@@ -122,8 +134,8 @@ export class GreedyReactive implements Policy {
           continue;
         }
         const holder = occupant[n];
-        if (holder >= 0 && !this.leaves(holder, n, world.robotCell[r], r, moves, tick)) {
-          if (!this.settled(holder, tick)) continue; // its own move is not settled yet
+        if (holder >= 0 && !this.leaves(holder, n, world.robotCell[r], r, moves, call)) {
+          if (!this.settled(holder, call)) continue; // its own move is not settled yet
           this.waitingOn[r] = -1;
           this.blockedSteps++;
           continue;
@@ -141,17 +153,18 @@ export class GreedyReactive implements Policy {
         this.blockedSteps++;
       }
     }
-    return active ? next : Infinity;
+    if (world.turnTicks > 0 && turns !== undefined) this.turning.apply(moves, turns);
+    return active ? tick + 1 : Infinity;
   }
 
-  /** True when robot `holder`'s move for this tick is final (decided and not waiting). */
-  private settled(holder: number, tick: number): boolean {
-    return this.decidedAt[holder] === tick && this.waitingOn[holder] < 0;
+  /** True when robot `holder`'s move in this call is final (decided and not waiting). */
+  private settled(holder: number, call: number): boolean {
+    return this.decidedAt[holder] === call && this.waitingOn[holder] < 0;
   }
 
   /** True when robot `holder`, standing on `cell`, has settled on a move to a cell other than `from` (robot r's cell: no swap). */
-  private leaves(holder: number, cell: number, from: number, r: number, moves: Int32Array, tick: number): boolean {
-    if (holder === r || !this.settled(holder, tick)) return false;
+  private leaves(holder: number, cell: number, from: number, r: number, moves: Int32Array, call: number): boolean {
+    if (holder === r || !this.settled(holder, call)) return false;
     const target = moves[holder];
     return target !== cell && target !== from;
   }
@@ -232,6 +245,10 @@ export class GreedyReactive implements Policy {
   }
 
   counters(): Record<string, number> {
-    return { blockedSteps: this.blockedSteps, dispatches: this.dispatches };
+    return {
+      blockedSteps: this.blockedSteps,
+      dispatches: this.dispatches,
+      ...(this.context.world.turnTicks > 0 ? { turnsInPlace: this.turning.turnsStarted, followersHeldByTurns: this.turning.followersHeld } : {}),
+    };
   }
 }

@@ -41,6 +41,13 @@
  * is on the stack at most once per tick and tries at most 5 cells, so a tick is O(robots * 5)
  * plus the assignment work. Memory: parallel typed arrays by robot and by cell.
  *
+ * Forward-only robots (`world.turnTicks` > 0): PIBT plans the tick as above; then a move
+ * that is not to the cell ahead becomes a turn in place towards it and the robots that were
+ * to follow into that cell stay (policies/shared/turn-in-place.ts), so the turn is paid as
+ * waiting. A robot that turns, handles or is held back by an execution delay is fixed: its
+ * cell is reserved before anyone plans, so nobody pushes it or enters it; its goal and
+ * priority stay.
+ *
  * PIBT is complete for the highest-priority robot only on graphs where every two
  * neighbouring cells lie on a cycle; elsewhere robots can livelock or stall. The policy
  * does not hide that: it allows the engine's modelled recovery (allowsRecovery) and the
@@ -50,6 +57,7 @@ import { z } from 'zod';
 import type { Policy, PolicyContext, PolicyOptionDoc } from '../../sim/policy.ts';
 import { Dispatcher } from './dispatch.ts';
 import type { DistanceField } from '../../sim/distance-field.ts';
+import { TurnInPlace } from '../shared/turn-in-place.ts';
 
 export const pibtOptions = z
   .object({
@@ -65,8 +73,8 @@ export const pibtOptionDocs: PolicyOptionDoc[] = [
   { name: 'maxStations', default: 64, unit: 'stations', description: 'pickup stations with the oldest open tasks compared per dispatch pass' },
 ];
 
-/** Scheduling classes, in the order they plan; handling robots are fixed before anyone plans. */
-const Band = { Task: 0, ToParking: 1, Resting: 2, Handling: 3 } as const;
+/** Scheduling classes, in the order they plan; handling (and turning or held) robots are fixed before anyone plans. */
+const Band = { Task: 0, ToParking: 1, Resting: 2, Handling: 3, Fixed: 4 } as const;
 
 /** Candidate cells per robot: four neighbours and its own cell. */
 const slots = 5;
@@ -117,6 +125,7 @@ export class Pibt implements Policy {
   private assignedVersion = -1;
   private readonly hashSeed: number;
 
+  private readonly turning: TurnInPlace;
   private inheritances = 0;
   private failedCalls = 0;
   private assignments = 0;
@@ -129,6 +138,7 @@ export class Pibt implements Policy {
   ) {
     const { world, layout } = context;
     this.dispatcher = new Dispatcher(world, context.distances, context.tickSeconds, options);
+    this.turning = new TurnInPlace(world, layout);
     const robots = world.robotCount;
     this.robots = robots;
     this.next = new Int32Array(robots).fill(-1);
@@ -182,7 +192,7 @@ export class Pibt implements Policy {
     }
   }
 
-  step(tick: number, moves: Int32Array): number {
+  step(tick: number, moves: Int32Array, turns?: Int8Array): number {
     const { world } = this.context;
     const robots = this.robots;
     if (world.version !== this.assignedVersion) {
@@ -190,6 +200,10 @@ export class Pibt implements Policy {
       this.assignedVersion = world.version;
     }
     this.updateGoals();
+    if (world.turnTicks > 0 || world.movesMayBeHeld) {
+      // Turning and held robots cannot move: reserved first, like handling ones.
+      for (let r = 0; r < robots; r++) if (this.band[r] !== Band.Handling && world.isFixed(r)) this.band[r] = Band.Fixed;
+    }
 
     // Clear last tick's reservations (every reserved cell is some robot's next cell).
     const next = this.next;
@@ -201,7 +215,7 @@ export class Pibt implements Policy {
     const cells = world.robotCell;
     const band = this.band;
     for (let r = 0; r < robots; r++) {
-      if (band[r] === Band.Handling) {
+      if (band[r] === Band.Handling || band[r] === Band.Fixed) {
         next[r] = cells[r];
         reservedBy[cells[r]] = r;
       }
@@ -227,8 +241,9 @@ export class Pibt implements Policy {
     let busy = false;
     for (let r = 0; r < robots; r++) {
       moves[r] = next[r];
-      if (band[r] === Band.Task || band[r] === Band.ToParking || next[r] !== cells[r]) busy = true;
+      if (band[r] === Band.Task || band[r] === Band.ToParking || band[r] === Band.Fixed || next[r] !== cells[r]) busy = true;
     }
+    if (world.turnTicks > 0 && turns !== undefined) this.turning.apply(moves, turns);
     return busy ? tick + 1 : Infinity;
   }
 
@@ -244,6 +259,7 @@ export class Pibt implements Policy {
       assignments: this.assignments,
       parkingClaims: this.parkingClaims,
       relocations: this.relocations,
+      ...(this.context.world.turnTicks > 0 ? { turnsInPlace: this.turning.turnsStarted, followersHeldByTurns: this.turning.followersHeld } : {}),
     };
   }
 
@@ -310,8 +326,9 @@ export class Pibt implements Policy {
     changed.length = 0;
     for (let r = 0; r < robots; r++) {
       let goal: number;
-      // Handling, charging or broken down robots are fixed; idle robots and robots queued for a charger rest.
-      if (world.isFixed(r)) {
+      // Handling, charging or broken down robots are fixed; idle robots and robots queued for a
+      // charger rest. A robot that only pauses (turning in place, a move held back) keeps its goal.
+      if (world.isFixed(r) && !world.isTurning(r) && !world.isHeld(r)) {
         this.band[r] = Band.Handling;
         goal = -1;
       } else if (!world.restsLikeIdle(r)) {

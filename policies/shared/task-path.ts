@@ -6,6 +6,12 @@
  * other robot's path crosses. The returned path lists the robot's cell at every tick from
  * `tick` to the end of its last handling, waits included, matching the engine's handling
  * convention (see sim/policy.ts).
+ *
+ * Forward-only robots (`world.turnTicks` > 0): every leg is searched with headings, from
+ * the robot's heading (and, for the first leg, from the tick its turn or held-back move in
+ * progress ends); a leg after a stop starts with the heading the robot arrived with, since
+ * it does not turn while being loaded or unloaded. The path still lists cells only: the
+ * robot turns, while it stands, towards the direction of its next move (sim/plan-execution.ts).
  */
 import { unreachable, type DistanceTables } from '../../sim/distance-table.ts';
 import type { ReservationTable } from '../../sim/reservation-table.ts';
@@ -39,6 +45,7 @@ export interface ParkingAfter {
  */
 export function planTask(planner: Planner, robot: number, from: number, tick: number, task: number, parkingAfter?: ParkingAfter): TaskPlan | null {
   const { world } = planner;
+  const heading = world.robotHeading[robot];
   stopCells[0] = world.taskPickup[task];
   stopHolds[0] = world.taskPickupTicks[task];
   stopCells[1] = world.taskDrop[task];
@@ -50,18 +57,19 @@ export function planTask(planner: Planner, robot: number, from: number, tick: nu
     stopCount = 3;
   }
   if (!parkingAfter) {
-    const pickupTick = planStops(planner, robot, from, tick, stopCount, true);
+    const pickupTick = planStops(planner, robot, from, tick, heading, stopCount, true);
     return pickupTick < 0 ? null : { path: assemble(stopCount, null), pickupTick };
   }
   const lastStop = stopCells[stopCount - 1];
   // Without a free spot the plan cannot end well: fail before searching the task's legs.
   const spotCount = parkingAfter.find(lastStop);
   if (spotCount === 0) return null;
-  const pickupTick = planStops(planner, robot, from, tick, stopCount, false);
+  const pickupTick = planStops(planner, robot, from, tick, heading, stopCount, false);
   if (pickupTick < 0) return null;
   const arrival = tick + legTicks(stopCount);
+  const arrivalHeading = lastLegHeading;
   for (let i = 0; i < spotCount; i++) {
-    const leg = planRest(planner, robot, lastStop, arrival, parkingAfter.spots[i]);
+    const leg = planRest(planner, robot, lastStop, arrival, parkingAfter.spots[i], arrivalHeading, arrival);
     if (leg) return { path: assemble(stopCount, leg), pickupTick };
   }
   // No parking spot to go on to: no plan. Resting on the drop instead would block it for
@@ -75,6 +83,8 @@ export function planTask(planner: Planner, robot: number, from: number, tick: nu
 const stopCells = new Int32Array(3);
 const stopHolds = new Int32Array(3);
 const legs: (Int32Array | null)[] = [null, null, null];
+/** Heading of the robot at the end of the last leg planStops searched. */
+let lastLegHeading = 0;
 
 /** Ticks from the start of the first leg to the end of the last stop's handling. */
 function legTicks(stopCount: number): number {
@@ -109,8 +119,9 @@ function assemble(stopCount: number, rest: Int32Array | null): Int32Array {
  * at the pickup, or -1 when a leg fails. `restAtEnd`: the last stop ends in a rest;
  * otherwise it is held for its handling only.
  */
-function planStops(planner: Planner, robot: number, from: number, tick: number, stopCount: number, restAtEnd: boolean): number {
+function planStops(planner: Planner, robot: number, from: number, tick: number, heading: number, stopCount: number, restAtEnd: boolean): number {
   const { table, search, distances } = planner;
+  let readyTick = readyTickOf(planner.world, robot, tick);
   let estimate = 64;
   let previous = from;
   for (let i = 0; i < stopCount; i++) {
@@ -124,27 +135,56 @@ function planStops(planner: Planner, robot: number, from: number, tick: number, 
   for (let i = 0; i < stopCount; i++) {
     const goal = stopCells[i];
     const hold = stopHolds[i];
-    const leg = search.search(requestFor(robot, cell, t, goal, distances.to(goal), hold, i === stopCount - 1 && restAtEnd));
+    const leg = search.search(requestFor(robot, cell, t, goal, distances.to(goal), hold, i === stopCount - 1 && restAtEnd, heading, readyTick));
     if (!leg) return -1;
     legs[i] = leg;
+    heading = search.lastHeading;
     t += leg.length - 1;
     if (i === 0) pickupTick = t;
     t += hold;
+    readyTick = t;
     cell = goal;
   }
+  lastLegHeading = heading;
   return pickupTick;
 }
 
-/** Plans a move to `goal` ending in a rest there (parking). */
-export function planRest(planner: Planner, robot: number, from: number, tick: number, goal: number): Int32Array | null {
+/** First tick at which robot r can turn or move: after a turn in progress or a held-back move (at least `tick`). */
+export function readyTickOf(world: World, robot: number, tick: number): number {
+  return Math.max(tick, world.robotTurnUntil[robot], world.robotHeldUntil[robot]);
+}
+
+/**
+ * Plans a move to `goal` ending in a rest there (parking). Starts from the robot's own
+ * heading and ready tick unless given (a leg after a task's last stop).
+ */
+export function planRest(
+  planner: Planner,
+  robot: number,
+  from: number,
+  tick: number,
+  goal: number,
+  heading = planner.world.robotHeading[robot],
+  readyTick = readyTickOf(planner.world, robot, tick),
+): Int32Array | null {
   planner.table.ensureHorizon(3 * planner.distances.distance(from, goal) + 64);
-  return planner.search.search(requestFor(robot, from, tick, goal, planner.distances.to(goal), 0, true));
+  return planner.search.search(requestFor(robot, from, tick, goal, planner.distances.to(goal), 0, true, heading, readyTick));
 }
 
 /** One search request object, refilled for every search (the search reads it during the call only). */
-const request: SearchRequest = { robot: 0, start: 0, startTick: 0, goal: 0, heuristic: new Int32Array(0), holdTicks: 0, restForever: false };
+const request: SearchRequest = { robot: 0, start: 0, startTick: 0, goal: 0, heuristic: new Int32Array(0), holdTicks: 0, restForever: false, startHeading: 0, readyTick: 0 };
 
-export function requestFor(robot: number, start: number, startTick: number, goal: number, heuristic: Int32Array, holdTicks: number, restForever: boolean): SearchRequest {
+export function requestFor(
+  robot: number,
+  start: number,
+  startTick: number,
+  goal: number,
+  heuristic: Int32Array,
+  holdTicks: number,
+  restForever: boolean,
+  startHeading = 0,
+  readyTick = startTick,
+): SearchRequest {
   request.robot = robot;
   request.start = start;
   request.startTick = startTick;
@@ -152,6 +192,8 @@ export function requestFor(robot: number, start: number, startTick: number, goal
   request.heuristic = heuristic;
   request.holdTicks = holdTicks;
   request.restForever = restForever;
+  request.startHeading = startHeading;
+  request.readyTick = readyTick;
   return request;
 }
 

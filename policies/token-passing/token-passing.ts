@@ -28,6 +28,12 @@
  * The same list counts the open tasks held back by the endpoint rule (`heldBackTaskSeconds`),
  * which is what caps token passing on floors with few drops: at most one robot per drop is
  * on its way.
+ *
+ * Turning and delays (sim/plan-execution.ts): with forward-only robots every search plans
+ * with headings, so the reservations cover the turns; with execution delays the robots
+ * follow their paths through an action dependency graph, and a robot takes the token only
+ * once it has driven its path (it stands on its end cell), not when its path ends in
+ * planned time.
  */
 import { z } from 'zod';
 import { CellKind } from '../../sim/layout.ts';
@@ -35,9 +41,10 @@ import type { Policy, PolicyContext } from '../../sim/policy.ts';
 import { ReservationTable } from '../../sim/reservation-table.ts';
 import { restSpotsForFleet } from '../../sim/rest-cells.ts';
 import { SpaceTimeAStar } from '../../sim/space-time-astar.ts';
+import { PlanExecution } from '../../sim/plan-execution.ts';
 import { Phase } from '../../sim/world.ts';
 import { OpenTasksByRoute } from './open-tasks-by-route.ts';
-import { freeParkingSpots, planRest, planTask, requestFor, type Planner } from '../shared/task-path.ts';
+import { freeParkingSpots, planRest, planTask, readyTickOf, requestFor, type Planner } from '../shared/task-path.ts';
 
 // Read once: imported bindings are getters under the TypeScript loader, and these are read per robot per step.
 const phaseIdle = Phase.Idle;
@@ -62,8 +69,7 @@ const swapRetryTicks = 8;
 export class TokenPassing implements Policy {
   private readonly table: ReservationTable;
   private readonly planner: Planner;
-  /** Tick at which each robot's reserved path ends. */
-  private readonly pathEnd: Int32Array;
+  private readonly execution: PlanExecution;
   /** Tick at which each robot reaches the pickup of its task (for swaps). */
   private readonly pickupTick: Int32Array;
   /** (world version, rest revision) at each robot's last fruitless token request. */
@@ -123,8 +129,8 @@ export class TokenPassing implements Policy {
   ) {
     const { world, layout } = context;
     this.table = new ReservationTable(layout.cellCount, world.robotCount);
-    this.planner = { world, table: this.table, search: new SpaceTimeAStar(layout, this.table, options.maxExpansions), distances: context.distances };
-    this.pathEnd = new Int32Array(world.robotCount);
+    this.planner = { world, table: this.table, search: new SpaceTimeAStar(layout, this.table, options.maxExpansions, 16, world.turnTicks), distances: context.distances };
+    this.execution = new PlanExecution(world, layout, this.table);
     this.pickupTick = new Int32Array(world.robotCount).fill(-1);
     this.triedVersion = new Float64Array(world.robotCount).fill(-1);
     this.triedRevision = new Float64Array(world.robotCount).fill(-1);
@@ -151,15 +157,19 @@ export class TokenPassing implements Policy {
     }
   }
 
-  step(tick: number, moves: Int32Array): number {
+  step(tick: number, moves: Int32Array, turns?: Int8Array): number {
     const { world } = this.context;
     const robots = world.robotCount;
+    const execution = this.execution;
     let retryTick = Infinity;
+    execution.beginStep(tick);
     this.countHeldBack(tick);
-    // Token requests in robot order; displaced robots (swaps) join the end of the queue.
+    // Token requests in robot order; displaced robots (swaps) join the end of the queue. A
+    // robot asks once its reserved path has ended (with delays the table holds the re-timed
+    // paths, so it has then driven all of it).
     const requests = this.requestQueue;
     let queued = 0;
-    for (let r = 0; r < robots; r++) if (this.pathEnd[r] <= tick) requests[queued++] = r;
+    for (let r = 0; r < robots; r++) if (execution.pathEnd(r) <= tick) requests[queued++] = r;
     // Robots displaced by a swap ask again in the same tick, but may not displace in turn:
     // chains of swaps cost a plan per link and rarely pay (a bound on the paper's recursion).
     const firstDisplaced = queued;
@@ -184,13 +194,7 @@ export class TokenPassing implements Policy {
         this.failures[r] = 0;
       }
     }
-    let following = false;
-    for (let r = 0; r < robots; r++) {
-      if (this.pathEnd[r] > tick) {
-        moves[r] = this.table.positionAt(r, tick + 1);
-        following = true;
-      }
-    }
+    const following = execution.step(tick, moves, turns);
     // The held-back count from now on reflects this step's assignments and rests.
     this.refreshCandidates();
     return following ? tick + 1 : retryTick;
@@ -370,7 +374,6 @@ export class TokenPassing implements Policy {
       this.failedPlans++;
       table.rest(robot, cell, tick);
       this.noteEnd(robot, cell);
-      this.pathEnd[robot] = tick;
       return -2;
     }
     // Nothing to take: leave task endpoints and aisles for a rest spot, else stay.
@@ -395,13 +398,12 @@ export class TokenPassing implements Policy {
     this.failedPlans++;
     table.rest(robot, cell, tick);
     this.noteEnd(robot, cell);
-    this.pathEnd[robot] = tick;
     return -2;
   }
 
   /** A robot may be stopped (a breakdown) once its reserved path has ended: it rests there and no other path crosses it. */
   canStop(robot: number, tick: number): boolean {
-    return this.pathEnd[robot] <= tick;
+    return this.execution.pathEnd(robot) <= tick;
   }
 
   /** Plans a move to the nearest free rest spot. True when planned, null when none is free, false when planning failed. */
@@ -421,7 +423,6 @@ export class TokenPassing implements Policy {
     this.failedPlans++;
     table.rest(robot, cell, tick);
     this.noteEnd(robot, cell);
-    this.pathEnd[robot] = tick;
     return false;
   }
 
@@ -463,7 +464,6 @@ export class TokenPassing implements Policy {
       const task = world.robotTask[other];
       const oldPath = table.paths[other]!;
       const oldStart = table.pathStart[other];
-      const oldEnd = this.pathEnd[other];
       const otherCell = world.robotCell[other];
       // Tentatively stop the other robot where it stands, then plan this one. It may stop
       // only where no other robot's reserved path or rest comes later (it could be crossing
@@ -476,13 +476,14 @@ export class TokenPassing implements Policy {
       table.rest(other, otherCell, tick);
       table.release(robot, tick);
       const pickup = world.taskPickup[task];
-      const leg = this.planner.search.search(requestFor(robot, cell, tick, pickup, distances.to(pickup), world.taskPickupTicks[task], false));
+      const leg = this.planner.search.search(
+        requestFor(robot, cell, tick, pickup, distances.to(pickup), world.taskPickupTicks[task], false, world.robotHeading[robot], readyTickOf(world, robot, tick)),
+      );
       const earlier = leg !== null && tick + leg.length - 1 < this.pickupTick[other];
       const plan = earlier ? planTask(this.planner, robot, cell, tick, task) : null;
       if (plan && plan.pickupTick < this.pickupTick[other]) {
         this.noteEnd(other, otherCell);
         world.unassign(other);
-        this.pathEnd[other] = tick;
         this.pickupTick[other] = -1;
         this.commit(robot, plan.path, tick, plan.pickupTick);
         world.assign(robot, task);
@@ -491,7 +492,6 @@ export class TokenPassing implements Policy {
       }
       table.rest(robot, cell, tick);
       table.reserve(other, oldPath, oldStart, tick);
-      this.pathEnd[other] = oldEnd;
     }
     return -1;
   }
@@ -518,7 +518,6 @@ export class TokenPassing implements Policy {
   private commit(robot: number, path: Int32Array, tick: number, pickupTick: number): void {
     this.noteEnd(robot, path[path.length - 1]);
     this.table.reserve(robot, path, tick);
-    this.pathEnd[robot] = tick + path.length - 1;
     this.pickupTick[robot] = pickupTick;
   }
 
@@ -534,6 +533,7 @@ export class TokenPassing implements Policy {
       expansions: this.planner.search.expansions,
       taskSwaps: this.taskSwaps,
       failedPlans: this.failedPlans,
+      ...(this.execution.dependent ? { dependencyWaits: this.execution.dependencyWaits, dependencyWaitSeconds: this.execution.dependencyWaitTicks * this.context.tickSeconds } : {}),
     };
   }
 }
