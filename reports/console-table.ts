@@ -6,6 +6,7 @@ import type { Interval } from './stats/index.ts';
 import type { RunSummary } from './summary.ts';
 import { safetyNote } from './safety.ts';
 import { realismLines, realismRows } from './realism-table.ts';
+import { executionLines, executionRows } from './execution-table.ts';
 
 type Unit = 'count' | 'seconds' | 'percent' | 'rate' | 'hours';
 
@@ -116,6 +117,7 @@ export function renderRunTable(summary: RunSummary): string {
     intervalRow('robot time: waiting/blocked', summary.robotTime.waiting, 'percent'),
     intervalRow('robot time: parked', summary.robotTime.parked, 'percent'),
     ...realismRows(summary, intervalRow),
+    ...executionRows(summary, intervalRow),
     intervalRow('deadlock episodes (per replication)', summary.deadlocks, 'count'),
     intervalRow('livelock episodes (per replication)', summary.livelocks, 'count'),
     intervalRow('fleet gridlock episodes (per rep.)', summary.gridlocks, 'count'),
@@ -128,6 +130,7 @@ export function renderRunTable(summary: RunSummary): string {
   );
   lines.push(describeStability(summary));
   lines.push(...realismLines(summary, renderColumns));
+  lines.push(...executionLines(summary));
   if (summary.batchMeans !== null && summary.batchMeans.unreliable.length > 0) {
     lines.push(
       `note: batch-means intervals not reliable for ${summary.batchMeans.unreliable.join(', ')} (lag-1 correlation of batch means still above ${summary.batchMeans.maximumLag1} at ${summary.batchMeans.minimumBatches} batches); use --reps 2 or more, or a longer run`,

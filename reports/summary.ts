@@ -29,6 +29,7 @@ import { assessStability, type StabilityReport } from './stability.ts';
 import { safetyNote } from './safety.ts';
 import { demandMixGap, stationGroupSummaries, stationRows, type StationGroupSummary, type StationRow } from './station-summary.ts';
 import { summarizeRealism, type BreakdownSummary, type ChargingSummary, type HourlySummary, type LeadTimeSplitSummary } from './realism-summary.ts';
+import { summarizeExecution, type DelaySummary, type TurningSummary } from './execution-summary.ts';
 
 export interface WarmupInfo {
   /** `none`: no automatic cut because demand varies in time (see `note`). */
@@ -101,6 +102,10 @@ export interface RunSummary {
   charging?: ChargingSummary;
   /** With breakdowns. */
   breakdowns?: BreakdownSummary;
+  /** With a turning time (units.turnSeconds > 0). */
+  turning?: TurningSummary;
+  /** With execution delays (faults.delays). */
+  delays?: DelaySummary;
   /** Per replication, always (with one replication: the count, no interval). */
   deadlocks: Interval;
   livelocks: Interval;
@@ -218,9 +223,17 @@ function finestBatches(record: ReplicationRecord, cutIntervals: number): WindowM
 /**
  * `warmupOverride` imposes one cut on several runs. `breakdownBaseline`: throughput per
  * replication (post-warm-up, same order) of the same scenario without breakdowns, for the
- * paired throughput lost (experiments/breakdown-baseline.ts).
+ * paired throughput lost (experiments/breakdown-baseline.ts). `delayBaseline`: the same
+ * without execution delays (experiments/delay-baseline.ts).
  */
-export function summarize(scenario: Scenario, records: ReplicationRecord[], wallSeconds: number, warmupOverride?: WarmupInfo, breakdownBaseline: number[] | null = null): SummaryParts {
+export function summarize(
+  scenario: Scenario,
+  records: ReplicationRecord[],
+  wallSeconds: number,
+  warmupOverride?: WarmupInfo,
+  breakdownBaseline: number[] | null = null,
+  delayBaseline: number[] | null = null,
+): SummaryParts {
   const warmup = warmupOverride ?? warmupCut(scenario, records);
   const intervalCount = records[0].metrics.intervalCount;
   const confidence = scenario.run.confidence;
@@ -358,6 +371,7 @@ export function summarize(scenario: Scenario, records: ReplicationRecord[], wall
     ...(realism.availability ? { availability: realism.availability } : {}),
     ...(realism.charging ? { charging: realism.charging } : {}),
     ...(realism.breakdowns ? { breakdowns: realism.breakdowns } : {}),
+    ...summarizeExecution(scenario, records, perReplication.map((w) => w.throughputPerHour), delayBaseline),
     deadlocks: perReplicationInterval((w) => w.deadlocks, 'nonNegative'),
     livelocks: perReplicationInterval((w) => w.livelocks, 'nonNegative'),
     gridlocks: perReplicationInterval((w) => w.gridlocks, 'nonNegative'),

@@ -149,3 +149,25 @@ describe('forward-only motion is enforced by the validator, not trusted to the p
     expect(record.collisionExamples.join(' ')).toMatch(/turned while being loaded or unloaded/);
   });
 });
+
+describe('the run summary reports turning, with the modelled turn time', () => {
+  it('a turn time that is not whole ticks is modelled rounded up, and the summary says so', () => {
+    // Ticks of 1.2 m / 1.5 m/s = 0.8 s; 2 s per quarter turn is 2.5 ticks -> 3 ticks = 2.4 s.
+    const scenario = makeScenario({ layout: lRoute, robots: 1, pickupSeconds: 3, dropSeconds: 2, turnSeconds: 2, cellMeters: 1.2, robotSpeedMps: 1.5, hours: 0.2 });
+    const records = runReplications(scenario);
+    const { summary } = summarize(scenario, records, 0);
+    expect(summary.turning!.turnSeconds).toBe(2);
+    expect(summary.turning!.modelledTurnSeconds).toBeCloseTo(2.4, 12);
+    // Whole run: quarter turns x 3 ticks over the robot's ticks.
+    const execution = records[0].execution!;
+    expect(summary.turning!.turningFraction.mean).toBeCloseTo((execution.quarterTurns * 3) / records[0].endTick, 12);
+    expect(summary.turning!.quarterTurnsPerRobotHour.mean).toBeCloseTo(execution.quarterTurns / (records[0].endTick * 0.8 / 3600), 9);
+  });
+
+  it('without turning time the summary has no turning block', () => {
+    const scenario = makeScenario({ layout: lRoute, robots: 1, hours: 0.1 });
+    const { summary } = summarize(scenario, runReplications(scenario), 0);
+    expect(summary.turning).toBeUndefined();
+    expect(summary.delays).toBeUndefined();
+  });
+});

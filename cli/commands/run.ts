@@ -3,6 +3,7 @@ import { loadScenarioFile, type ScenarioOverrides } from '../../scenarios/load.t
 import { prepareSetup, runReplications } from '../../experiments/replications.ts';
 import { checkOutputFolder, writeOutputFolder } from '../../experiments/output-folder.ts';
 import { breakdownBaseline } from '../../experiments/breakdown-baseline.ts';
+import { delayBaseline } from '../../experiments/delay-baseline.ts';
 import { summarize, toJson, warmupCut, type WarmupInfo } from '../../reports/summary.ts';
 import { renderRunTable, traceWarning } from '../../reports/console-table.ts';
 import { replicationsCsv, stationsCsv, throughputSeriesCsv } from '../../reports/csv.ts';
@@ -22,24 +23,33 @@ export async function runCommand(scenarioPath: string, json: boolean, outDirecto
   const started = performance.now();
   const progress = await startProgress(`${scenario.policy.name}, ${scenario.fleet.robots} robots`);
   let records;
-  // With breakdowns, the same replications run again without them (same seeds) for the paired throughput lost.
-  const passes = scenario.faults?.breakdowns ? 2 : 1;
+  // With breakdowns or delays, the same replications run again without each (same seeds) for the paired throughput lost.
+  const passes = 1 + (scenario.faults?.breakdowns ? 1 : 0) + (scenario.faults?.delays ? 1 : 0);
   let baseline: number[] | null = null;
+  let withoutDelays: number[] | null = null;
   let warmup: WarmupInfo | undefined;
   try {
     // The one replication loop (collisions and illegal steps fail the run); the recorder watches replication 1.
     records = runReplications(setup, (fraction, replication, n) => progress.update(fraction / passes, `replication ${replication + 1}/${n}`), (replication) =>
       replication === 0 && recording ? recording.hooks : {},
     );
-    if (passes === 2) {
+    if (passes > 1) {
       warmup = warmupCut(scenario, records);
-      baseline = breakdownBaseline(scenario, records, warmup.intervals, (fraction) => progress.update((1 + fraction) / 2, 'the same replications without breakdowns'));
+      let pass = 1;
+      if (scenario.faults?.breakdowns) {
+        const done = pass++;
+        baseline = breakdownBaseline(scenario, records, warmup.intervals, (fraction) => progress.update((done + fraction) / passes, 'the same replications without breakdowns'));
+      }
+      if (scenario.faults?.delays) {
+        const done = pass++;
+        withoutDelays = delayBaseline(scenario, records, warmup.intervals, (fraction) => progress.update((done + fraction) / passes, 'the same replications without delays'));
+      }
     }
   } finally {
     progress.stop();
   }
   const wallSeconds = (performance.now() - started) / 1000;
-  const parts = summarize(scenario, records, wallSeconds, warmup, baseline);
+  const parts = summarize(scenario, records, wallSeconds, warmup, baseline, withoutDelays);
   const unreleased = traceWarning(parts.summary);
   if (unreleased !== null) process.stderr.write(`${unreleased}\n`);
   const hourly = hourlyCsv(parts.summary);
