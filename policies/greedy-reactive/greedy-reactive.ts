@@ -14,9 +14,10 @@
  *    settled in a second pass, repeated until nothing changes.
  *  - Rest: a robot without a task heads for the nearest parking spot (`H`) that no resting
  *    robot holds and no other robot is heading for (ties in reading order), and stays.
- *  - Forward-only robots (`world.turnTicks` > 0): a chosen move that is not to the cell
- *    ahead becomes a turn in place towards it, and robots that were to follow into its cell
- *    wait (policies/shared/turn-in-place.ts): the turn is paid as waiting.
+ *  - Forward-only robots (`world.turnTicks` > 0): the cell ahead is looked at first; a
+ *    chosen move that is not to the cell ahead becomes a turn in place towards it, and
+ *    robots that were to follow into its cell wait (policies/shared/turn-in-place.ts): the
+ *    turn is paid as waiting.
  *  - Robots that cannot move (handling, turning, held back by an execution delay) stand
  *    still; nobody waits to follow them.
  *
@@ -75,6 +76,7 @@ export class GreedyReactive implements Policy {
 
     let active = false;
     const call = ++this.call;
+    const forwardOnly = world.turnTicks > 0 && turns !== undefined;
     /** Claims of this call (the next tick's cells). */
     const next = call;
     const occupant = world.occupant;
@@ -101,7 +103,11 @@ export class GreedyReactive implements Policy {
       const base = cell * 4;
       let chosen = -1;
       let wait = -1;
-      for (let d = 0; d < 4; d++) {
+      // Forward-only robots look at the cell ahead first (no turn needed), then N, E, S, W.
+      const ahead = forwardOnly ? world.robotHeading[r] : -1;
+      for (let k = ahead < 0 ? 0 : -1; k < 4; k++) {
+        if (k === ahead) continue;
+        const d = k < 0 ? ahead : k;
         const n = layout.neighbors[base + d];
         if (n < 0 || table[n] !== closer || this.claimedFor[n] === next) continue;
         const holder = occupant[n];

@@ -41,7 +41,10 @@
  * is on the stack at most once per tick and tries at most 5 cells, so a tick is O(robots * 5)
  * plus the assignment work. Memory: parallel typed arrays by robot and by cell.
  *
- * Forward-only robots (`world.turnTicks` > 0): PIBT plans the tick as above; then a move
+ * Forward-only robots (`world.turnTicks` > 0): PIBT plans the tick as above, ranking cells
+ * equally close to the goal by the quarter turns they need (ahead first: measured on the demo
+ * hall at 24 robots with 1 s turns, capacity 1,374/h against 1,078/h without that rank, with
+ * 444 instead of 982 quarter turns per robot-hour); then a move
  * that is not to the cell ahead becomes a turn in place towards it and the robots that were
  * to follow into that cell stay (policies/shared/turn-in-place.ts), so the turn is paid as
  * waiting. A robot that turns, handles or is held back by an execution delay is fixed: its
@@ -58,6 +61,7 @@ import type { Policy, PolicyContext, PolicyOptionDoc } from '../../sim/policy.ts
 import { Dispatcher } from './dispatch.ts';
 import type { DistanceField } from '../../sim/distance-field.ts';
 import { TurnInPlace } from '../shared/turn-in-place.ts';
+import { quarterTurns } from '../../sim/headings.ts';
 
 export const pibtOptions = z
   .object({
@@ -471,16 +475,19 @@ export class Pibt implements Policy {
     // the key is 0 (closer), 1 (stay) or 2 (farther); without a goal staying comes first.
     let mix = this.hashSeed ^ Math.imul(tick, 0x9e3779b1);
     mix = Math.imul(mix ^ r, 0x85ebca6b);
+    // Forward-only robots: among cells equally close, the one needing fewer quarter turns first.
+    const heading = world.turnTicks > 0 ? world.robotHeading[r] : -1;
     let count = 0;
     for (let d = -1; d < 4; d++) {
       const v = d < 0 ? cell : neighbors[cell * 4 + d];
       if (v < 0) continue;
-      // Distance first, then cells empty now, then a seeded hash of (tick, robot, cell).
+      // Distance first, then (forward-only) turns, then cells empty now, then a seeded hash of (tick, robot, cell).
       const step = v === cell ? 1 : farther < 0 ? 2 : (farther >> d) & 1 ? 2 : 0;
+      const turn = heading < 0 || v === cell ? 0 : quarterTurns(heading, d);
       const busy = v !== cell && occupant[v] >= 0 ? 1 : 0;
       let h = Math.imul(mix ^ (mix >>> 13) ^ v, 0xc2b2ae35);
       h ^= h >>> 16;
-      const key = step * 4096 + busy * 2048 + (h & 2047);
+      const key = step * 16384 + turn * 4096 + busy * 2048 + (h & 2047);
       // Insertion into the sorted prefix (at most 5 entries).
       let i = count++;
       while (i > 0 && keys[i - 1] > key) {
