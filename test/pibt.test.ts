@@ -120,7 +120,9 @@ describe('pibt at scale', () => {
     const layout = generateSortationHall({ width: 480, height: 250, parking: 10000 });
     const scenario = makeScenario({ layout, robots: 10000, policy: 'pibt', hours: 3 / 60, pickupSeconds: 4, dropSeconds: 3 });
     const meanDistance: { tick: number; cells: number }[] = [];
+    const inductsServed = new Set<number>();
     const { record, sharedCells, swaps } = runWatched(scenario, (tick, world, distances) => {
+      if (tick === 1) for (let r = 0; r < world.robotCount; r++) if (world.robotPhase[r] === Phase.ToPickup) inductsServed.add(world.taskPickup[world.robotTask[r]]);
       if (tick !== 1 && tick !== 170) return;
       let sum = 0;
       let robots = 0;
@@ -136,6 +138,9 @@ describe('pibt at scale', () => {
     expect(record.illegalSteps).toBe(0);
     expect(sharedCells).toBe(0);
     expect(swaps).toBe(0);
+    // The capacity pool holds more tasks than robots, so the backlog rule dispatches the
+    // cold start: every one of the 123 induct points must get robots (it once got 64).
+    expect(inductsServed.size).toBe(parseLayout(layout).pickups.length);
     expect(meanDistance.map((m) => m.tick)).toEqual([1, 170]);
     const cellsPerTick = (meanDistance[0].cells - meanDistance[1].cells) / 169;
     console.info(`pibt 480 x 250 hall, 10,000 robots, 3 min: mean distance to goal falls ${cellsPerTick.toFixed(2)} cells/tick, ${record.delivered} delivered`);
@@ -279,6 +284,114 @@ describe('pibt dispatch rule on hand-built floors', () => {
       const atB = task(5, 9);
       expect(run({ queueWeight }, [0], 10)).toEqual([[0, expected === 'A' ? atA : atB]]);
     }
+  });
+
+  it('under a backlog with several idle robots the cheapest robot-station pair goes first, whatever the robot indices', () => {
+    // Robot 0 at 4:1 (A 3 cells, B 5), robot 1 at 2:1 (A 1, B 7); one task at A, two at B
+    // (3 open > 2 idle: the backlog rule). Costs by hand (no ageing, no queue term):
+    //   cheapest pair first: robot 1 -> A (1), then A has no task left: robot 0 -> B (5); 6 cells.
+    //   robots in index order would give robot 0 -> A (3), robot 1 -> B (7); 10 cells.
+    const { task, run } = setup([4, 2]);
+    const atA = task(0, 1);
+    const atB = task(0, 9);
+    task(1, 9);
+    expect(run({}, [0, 1], 5)).toEqual([
+      [1, atA],
+      [0, atB],
+    ]);
+  });
+
+  it('under a backlog the greedy matching agrees with a brute-force reference (few and many idle robots)', () => {
+    // Reference written here, O(idle^2 x stations): the candidate tasks are the open tasks
+    // scanned oldest first until every pickup is seen and as many tasks as idle robots are
+    // collected (at most that many per pickup); then, round by round, the pair (pickup with
+    // a task left, unclaimed idle robot) of least cost = grid distance (BFS table) + seconds
+    // of pickup handling already sent there (queueWeight 1, 1 s ticks) - ageing credit of its
+    // oldest remaining task, ties to the pickup seen first, then the lower robot index.
+    const random = seedrandom('dispatch-greedy');
+    const layout = parseLayout(generateSortationHall({ width: 64, height: 33 }));
+    const tables = new Map(Array.from(layout.pickups, (p) => [p, distanceTable(layout, p)] as const));
+    for (const idleCount of [1, 3, 12, 40]) {
+      for (let trial = 0; trial < 4; trial++) {
+        const robots = idleCount + 5;
+        const world = new World(layout, robots);
+        const free = [...layout.floorCells];
+        for (let r = 0; r < robots; r++) {
+          const cell = free.splice(Math.floor(random() * free.length), 1)[0];
+          world.robotCell[r] = cell;
+          world.occupant[cell] = r;
+        }
+        const tick = 500;
+        const tasks = 2 * idleCount + 10;
+        for (let k = 0; k < tasks; k++) {
+          const pickup = layout.pickups[Math.floor(random() * layout.pickups.length)];
+          world.addTask(Math.floor(random() * tick), pickup, layout.drops[0], -1, 4, 3, 0, TaskState.Open);
+        }
+        world.openTasks.sort((a, b) => world.taskRelease[a] - world.taskRelease[b] || a - b);
+        const idle = Array.from({ length: idleCount }, (_, i) => i);
+        // Candidates by the documented scan.
+        const perPickup = new Map<number, number[]>();
+        let collected = 0;
+        for (const t of world.openTasks) {
+          const p = world.taskPickup[t];
+          if (!perPickup.has(p)) perPickup.set(p, []);
+          if (perPickup.get(p)!.length < idleCount) {
+            perPickup.get(p)!.push(t);
+            collected++;
+          }
+          if (perPickup.size === new Set(layout.pickups).size && collected >= idleCount) break;
+        }
+        const queued = new Map<number, number>();
+        const expected: [number, number][] = [];
+        const taken = new Set<number>();
+        for (let round = 0; round < idleCount; round++) {
+          let best: [number, number, number] | null = null; // cost, pickup, robot
+          for (const [p, list] of perPickup) {
+            if (list.length === 0) continue;
+            const credit = 0.1 * (tick - world.taskRelease[list[0]]) - (queued.get(p) ?? 0);
+            for (const r of idle) {
+              if (taken.has(r)) continue;
+              const cost = tables.get(p)![world.robotCell[r]] - credit;
+              if (best === null || cost < best[0]) best = [cost, p, r];
+            }
+          }
+          if (best === null) break;
+          const [, p, r] = best;
+          taken.add(r);
+          expected.push([r, perPickup.get(p)!.shift()!]);
+          queued.set(p, (queued.get(p) ?? 0) + 4);
+        }
+        const given: [number, number][] = [];
+        new Dispatcher(world, new DistanceTables(layout), 1, pibt.options.parse({})).dispatch(idle, tick, (robot, t) => given.push([robot, t]));
+        expect(given, `${idleCount} idle robots, trial ${trial}`).toEqual(expected);
+      }
+    }
+  });
+
+  it('under a backlog every pickup station is a candidate by default, also on halls with more than 64', () => {
+    // 68 induct points, three open tasks at each released round-robin, 150 idle robots:
+    // with the queue term (4 s of handling per robot sent) every station gets robots. The
+    // default once compared only the 64 stations with the oldest tasks, so that 10,000
+    // robots leaving parking on a 123-induct hall were all sent to 64 of them.
+    const layout = parseLayout(generateSortationHall({ width: 30, height: 140 }));
+    expect(layout.pickups.length).toBe(68);
+    const random = seedrandom('dispatch-all-stations');
+    const robots = 150;
+    const world = new World(layout, robots);
+    const free = [...layout.floorCells];
+    for (let r = 0; r < robots; r++) {
+      const cell = free.splice(Math.floor(random() * free.length), 1)[0];
+      world.robotCell[r] = cell;
+      world.occupant[cell] = r;
+    }
+    for (let round = 0; round < 3; round++) for (const p of layout.pickups) world.addTask(0, p, layout.drops[0], -1, 4, 3, 0, TaskState.Open);
+    const served = new Set<number>();
+    new Dispatcher(world, new DistanceTables(layout), 1, pibt.options.parse({})).dispatch(
+      Array.from({ length: robots }, (_, r) => r),
+      10,
+      (_robot, task) => served.add(world.taskPickup[task]),
+    );
+    expect(served.size).toBe(68);
   });
 
   it('with many robots to spare (the bucketed path), every task gets the robot a plain nearest-first reference picks', () => {

@@ -7,11 +7,11 @@
  * Goals. A robot holding a task heads for its task goal (world.goalOf). Open tasks go to
  * idle robots whenever the open list or a robot's task changes (world.version), by the rule
  * of dispatch.ts: with few open tasks each takes the nearest idle robot; under a backlog
- * each idle robot takes the oldest task of the pickup station with the lowest cost of
- * distance, queued handling and an ageing credit (as in flow-batch's epoch assignment), so
- * every station keeps being served. An idle robot claims the nearest unclaimed parking spot
- * (breadth-first search from its cell) and heads there; with no spot free it rests where it
- * stands.
+ * the idle robots take the oldest tasks of the pickup stations by the lowest cost of
+ * distance, queued handling and an ageing credit (as in flow-batch's epoch assignment),
+ * cheapest robot-station pair first, so every station keeps being served. An idle robot
+ * claims the nearest unclaimed parking spot (breadth-first search from its cell) and heads
+ * there; with no spot free it rests where it stands.
  *
  * Priorities (paper, §3): ticks elapsed since the robot's goal last changed plus a unique
  * fraction in [0, 1) drawn once from the policy's random stream; a robot whose goal
@@ -67,14 +67,14 @@ export const pibtOptions = z
   .object({
     ageWeight: z.number().nonnegative().finite().default(0.1),
     queueWeight: z.number().nonnegative().finite().default(1),
-    maxStations: z.number().int().positive().default(64),
+    maxStations: z.number().int().positive().default(1024),
   })
   .strict();
 export type PibtOptions = z.infer<typeof pibtOptions>;
 export const pibtOptionDocs: PolicyOptionDoc[] = [
   { name: 'ageWeight', default: 0.1, unit: 'cells/s', description: "under a backlog: cost credit per second a station's oldest open task has waited, so no station starves; 0 = nearest station" },
   { name: 'queueWeight', default: 1, unit: 'ratio', description: 'under a backlog: cost of a second of pickup handling already queued at a station, relative to a second of driving; 0 ignores queues' },
-  { name: 'maxStations', default: 64, unit: 'stations', description: 'pickup stations with the oldest open tasks compared per dispatch pass' },
+  { name: 'maxStations', default: 1024, unit: 'stations', description: 'under a backlog: at most this many pickup stations (those with the oldest open tasks) compared per dispatch pass; the default compares every station of any hall up to 1,024 pickups' },
 ];
 
 /** Scheduling classes, in the order they plan; handling (and turning or held) robots are fixed before anyone plans. */
