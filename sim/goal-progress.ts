@@ -11,7 +11,11 @@
  * thousands of drops, one Int32 table per live goal does not fit, and a cache smaller than
  * the live goals rebuilds a table for almost every robot at every tick).
  */
-import { reachedBit, type DistanceField, type DistanceFields } from './distance-field.ts';
+import { reachedBit as reachedBitImport, type DistanceField, type DistanceFields } from './distance-field.ts';
+
+// Read once: imported bindings are getters under the TypeScript loader, and this is read per
+// moving robot per tick.
+const reachedBit = reachedBitImport;
 
 export class GoalProgress {
   private readonly goal: Int32Array;

@@ -54,8 +54,14 @@
  * O(pickups x (robots + largest distance)) instead of O(tasks x robots).
  */
 import type { DistanceTables } from '../../sim/distance-table.ts';
-import { unreachable } from '../../sim/distance-table.ts';
+import { unreachable as unreachableImport } from '../../sim/distance-table.ts';
 import { Phase, type World } from '../../sim/world.ts';
+
+// Read once: imported bindings are getters under the TypeScript loader, and these are read
+// per robot in the dispatch loops.
+const unreachable = unreachableImport;
+const phaseToPickup = Phase.ToPickup;
+const phaseHandlingPickup = Phase.HandlingPickup;
 
 /** Above this many (idle robots x open tasks) pairs, tasks choose by sorted buckets instead of scans. */
 const bucketThreshold = 1 << 16;
@@ -240,12 +246,12 @@ export class Dispatcher {
     if (queueWeight > 0) {
       for (let r = 0; r < world.robotCount; r++) {
         const phase = world.robotPhase[r];
-        if (phase !== Phase.ToPickup && phase !== Phase.HandlingPickup) continue;
+        if (phase !== phaseToPickup && phase !== phaseHandlingPickup) continue;
         const task = world.robotTask[r];
         const pickup = world.taskPickup[task];
         if (slotOf[pickup] < 0) continue;
         if (queuedTicks[pickup] === 0) this.queuedCells.push(pickup);
-        queuedTicks[pickup] += phase === Phase.HandlingPickup ? Math.max(0, world.robotHandlingUntil[r] - tick) : world.taskPickupTicks[task];
+        queuedTicks[pickup] += phase === phaseHandlingPickup ? Math.max(0, world.robotHandlingUntil[r] - tick) : world.taskPickupTicks[task];
       }
     }
 

@@ -95,6 +95,10 @@ export class Pibt implements Policy {
   private readonly cursor: Uint8Array;
   private readonly stack: Int32Array;
   private readonly sortKey: Int32Array;
+  /** The world's and layout's arrays read in the inner loop (their identity never changes). */
+  private readonly robotCell: Int32Array;
+  private readonly occupant: Int32Array;
+  private readonly neighbors: Int32Array;
 
   /** The goal each robot pursued at the last step (task goal or parking claim), -1 for none. */
   private readonly goal: Int32Array;
@@ -125,6 +129,9 @@ export class Pibt implements Policy {
   private readonly isParking: Uint8Array;
 
   private readonly idle: number[] = [];
+  /** Robots in the task and to-parking bands at this tick (updateGoals). */
+  private withTask = 0;
+  private toParking = 0;
   private readonly dispatcher: Dispatcher;
   private assignedVersion = -1;
   private readonly hashSeed: number;
@@ -153,6 +160,9 @@ export class Pibt implements Policy {
     this.cursor = new Uint8Array(robots);
     this.stack = new Int32Array(robots);
     this.sortKey = new Int32Array(slots);
+    this.robotCell = world.robotCell;
+    this.occupant = world.occupant;
+    this.neighbors = layout.neighbors;
     this.goal = new Int32Array(robots).fill(-1);
     this.goalField = new Array<DistanceField | null>(robots).fill(null);
     this.band = new Uint8Array(robots);
@@ -204,20 +214,27 @@ export class Pibt implements Policy {
       this.assignedVersion = world.version;
     }
     this.updateGoals();
+    let anyFixed = false;
     if (world.turnTicks > 0 || world.movesMayBeHeld) {
       // Turning and held robots cannot move: reserved first, like handling ones.
-      for (let r = 0; r < robots; r++) if (this.band[r] !== Band.Handling && world.isFixed(r)) this.band[r] = Band.Fixed;
+      for (let r = 0; r < robots; r++) {
+        if (this.band[r] !== Band.Handling && world.isFixed(r)) {
+          this.band[r] = Band.Fixed;
+          anyFixed = true;
+        }
+      }
     }
 
-    // Clear last tick's reservations (every reserved cell is some robot's next cell).
+    // Clear last tick's reservations (every reserved cell is some robot's next cell), then
+    // fix the handling robots on their cells.
     const next = this.next;
     const reservedBy = this.reservedBy;
+    const cells = world.robotCell;
+    const band = this.band;
     for (let r = 0; r < robots; r++) {
       if (next[r] >= 0) reservedBy[next[r]] = -1;
       next[r] = -1;
     }
-    const cells = world.robotCell;
-    const band = this.band;
     for (let r = 0; r < robots; r++) {
       if (band[r] === Band.Handling || band[r] === Band.Fixed) {
         next[r] = cells[r];
@@ -229,23 +246,21 @@ export class Pibt implements Policy {
       const r = order[i];
       if (band[r] === Band.Task && next[r] < 0) this.plan(r, tick);
     }
-    for (let i = 0; i < robots; i++) {
-      const r = order[i];
-      if (band[r] === Band.ToParking && next[r] < 0) this.plan(r, tick);
+    if (this.toParking > 0) {
+      for (let i = 0; i < robots; i++) {
+        const r = order[i];
+        if (band[r] === Band.ToParking && next[r] < 0) this.plan(r, tick);
+      }
     }
     // Resting robots not pushed by now stay: staying is their first choice and always free,
     // since a robot that wanted the cell would have pushed them.
+    let busy = anyFixed || this.toParking > 0 || this.withTask > 0;
     for (let r = 0; r < robots; r++) {
       if (next[r] < 0) {
         next[r] = cells[r];
         reservedBy[cells[r]] = r;
-      }
-    }
-
-    let busy = false;
-    for (let r = 0; r < robots; r++) {
+      } else if (next[r] !== cells[r]) busy = true;
       moves[r] = next[r];
-      if (band[r] === Band.Task || band[r] === Band.ToParking || band[r] === Band.Fixed || next[r] !== cells[r]) busy = true;
     }
     if (world.turnTicks > 0 && turns !== undefined) this.turning.apply(moves, turns);
     return busy ? tick + 1 : Infinity;
@@ -328,6 +343,8 @@ export class Pibt implements Policy {
     const robots = this.robots;
     const changed = this.changed;
     changed.length = 0;
+    let withTask = 0;
+    let toParking = 0;
     for (let r = 0; r < robots; r++) {
       let goal: number;
       // Handling, charging or broken down robots are fixed; idle robots and robots queued for a
@@ -336,8 +353,9 @@ export class Pibt implements Policy {
         this.band[r] = Band.Handling;
         goal = -1;
       } else if (!world.restsLikeIdle(r)) {
-        this.releaseParking(r);
+        if (this.parkingOf[r] >= 0) this.releaseParking(r);
         this.band[r] = Band.Task;
+        withTask++;
         goal = world.goalOf(r);
       } else {
         if (this.parkingOf[r] < 0 && this.freeParking > 0 && this.parkingTriedAt[r] !== this.parkingRevision) {
@@ -352,7 +370,10 @@ export class Pibt implements Policy {
           }
         }
         goal = this.parkingOf[r];
-        this.band[r] = goal >= 0 && goal !== world.robotCell[r] ? Band.ToParking : Band.Resting;
+        if (goal >= 0 && goal !== world.robotCell[r]) {
+          this.band[r] = Band.ToParking;
+          toParking++;
+        } else this.band[r] = Band.Resting;
       }
       if (goal !== this.goal[r]) {
         this.goal[r] = goal;
@@ -360,6 +381,8 @@ export class Pibt implements Policy {
         changed.push(r);
       }
     }
+    this.withTask = withTask;
+    this.toParking = toParking;
     if (changed.length === 0) return;
     // Robots whose goal changed now have the newest start tick: keep the others in order
     // and append these, higher tie-breaker first.
@@ -454,11 +477,10 @@ export class Pibt implements Policy {
 
   /** Prepares robot r's frame: its parent and its candidate cells, best first. */
   private push(r: number, parentRobot: number, tick: number): void {
-    const world = this.context.world;
-    const neighbors = this.context.layout.neighbors;
+    const neighbors = this.neighbors;
     this.parent[r] = parentRobot;
     this.cursor[r] = 0;
-    const cell = world.robotCell[r];
+    const cell = this.robotCell[r];
     const goal = this.goal[r];
     // Bit d: the neighbour in direction d is farther from the goal; -1: no goal to rank by.
     let farther = -1;
@@ -467,7 +489,7 @@ export class Pibt implements Policy {
       farther = field === null ? -2 : field.rankAround(cell);
       if (farther === -2) farther = (this.goalField[r] = this.context.distances.fields.to(goal, cell)).rankAround(cell);
     }
-    const occupant = world.occupant;
+    const occupant = this.occupant;
     const candidates = this.candidates;
     const base = r * slots;
     const keys = this.sortKey;
