@@ -11,10 +11,16 @@
  * wall second), deliveries, the policy's share of wall time (the engine's own cost is the
  * rest, measured in the same run) and the distance work: full tables built
  * (sim/distance-table.ts) and windowed fields built with the cells they searched
- * (sim/distance-field.ts). Wall time includes all of it, done lazily during the run.
+ * (sim/distance-field.ts). Wall time includes all of it, done lazily during the run. Beside
+ * it, the process's CPU seconds over the run and the 1-minute load average at its end: on a
+ * shared machine wall time grows with other processes' load, CPU time much less, so the two
+ * together tell a slower program from a busier machine. `poolDepth` is the capacity pool's
+ * final depth (sim/engine.ts capacityPoolDepth: it grows only when a step leaves robots idle
+ * while the pool is full).
  *
  * Run directly: `npx tsx bench/pibt.ts [--json] [--10k] [hours | minutes with --10k]`.
  */
+import os from 'node:os';
 import { pibt } from '../policies/pibt/index.ts';
 import { generateSortationHall } from '../scenarios/generate.ts';
 import { DistanceTables } from '../sim/distance-table.ts';
@@ -32,11 +38,17 @@ export interface PibtBenchRow {
   agentStepsPerSecond: number;
   realTimeFactor: number;
   wallSeconds: number;
+  /** User + system CPU seconds of the process over the run (both cores count). */
+  cpuSeconds: number;
+  /** The machine's 1-minute load average at the end of the run. */
+  loadAverage: number;
   /** Policy step time / wall time. */
   planningShare: number;
   delivered: number;
   collisions: number;
   deadlockEpisodes: number;
+  /** Final depth of the capacity pool of open tasks. */
+  poolDepth: number | null;
   tableBuilds: number;
   fieldBuilds: number;
   fieldCellsSearched: number;
@@ -49,7 +61,9 @@ function benchHall(name: PibtBenchRow['name'], width: number, height: number, ro
   const scenario = makeScenario({ layout: layoutText, robots, policy: 'pibt', hours: minutes / 60, pickupSeconds: 4, dropSeconds: 3 });
   const layout = parseLayout(layoutText);
   const distances = new DistanceTables(layout);
+  const cpuBefore = process.cpuUsage();
   const record = runReplication({ scenario, layout, distances, policy: pibt, policyOptions: pibt.options.parse({}) }, 0);
+  const cpu = process.cpuUsage(cpuBefore);
   return {
     name,
     policy: 'pibt',
@@ -60,10 +74,13 @@ function benchHall(name: PibtBenchRow['name'], width: number, height: number, ro
     agentStepsPerSecond: Math.round(record.agentSteps / record.timing.wallSeconds),
     realTimeFactor: Math.round((record.endTick * record.tickSeconds) / record.timing.wallSeconds),
     wallSeconds: Number(record.timing.wallSeconds.toFixed(3)),
+    cpuSeconds: Number(((cpu.user + cpu.system) / 1e6).toFixed(3)),
+    loadAverage: Number(os.loadavg()[0].toFixed(2)),
     planningShare: Number((record.timing.planningSeconds / record.timing.wallSeconds).toFixed(3)),
     delivered: record.delivered,
     collisions: record.collisions,
     deadlockEpisodes: record.metrics.episodes.length,
+    poolDepth: record.poolDepth,
     tableBuilds: distances.builds,
     fieldBuilds: distances.fields.builds,
     fieldCellsSearched: distances.fields.cellsSearched,
@@ -92,8 +109,8 @@ if (import.meta.url === `file://${process.argv[1]}`) {
   } else {
     process.stdout.write(
       `${row.name}, ${row.robots} robots, ${row.simulatedMinutes} min on a ${row.hall} hall: ${row.agentStepsPerSecond} agent-steps/s, ` +
-        `${row.realTimeFactor}x real time (${row.wallSeconds} s wall, policy ${(row.planningShare * 100).toFixed(0)}% of it), ` +
-        `${row.delivered} delivered, ${row.collisions} collisions, ${row.deadlockEpisodes} deadlock episodes, ` +
+        `${row.realTimeFactor}x real time (${row.wallSeconds} s wall, policy ${(row.planningShare * 100).toFixed(0)}% of it; ${row.cpuSeconds} s CPU, load ${row.loadAverage}), ` +
+        `${row.delivered} delivered, ${row.collisions} collisions, ${row.deadlockEpisodes} deadlock episodes, pool ${row.poolDepth} tasks, ` +
         `${row.tableBuilds} tables, ${row.fieldBuilds} fields (${(row.fieldCellsSearched / 1e6).toFixed(1)} M cells), ${row.rssMegabytes} MB RSS\n`,
     );
   }
