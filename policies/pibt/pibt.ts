@@ -498,6 +498,7 @@ export class Pibt implements Policy {
     let mix = this.hashSeed ^ Math.imul(tick, 0x9e3779b1);
     mix = Math.imul(mix ^ r, 0x85ebca6b);
     // Forward-only robots: among cells equally close, the one needing fewer quarter turns first.
+    const world = this.context.world;
     const heading = world.turnTicks > 0 ? world.robotHeading[r] : -1;
     let count = 0;
     for (let d = -1; d < 4; d++) {
