@@ -11,6 +11,7 @@
  * with `npm run bench -- --only memory`.
  */
 import { spawnSync } from 'node:child_process';
+import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 
 export interface MemoryBenchRow {
@@ -27,9 +28,19 @@ export interface MemoryBenchRow {
 }
 
 const self = fileURLToPath(import.meta.url);
+const runDirectly = process.argv[1] === self;
+
+/**
+ * The child's command line: this file under the loader it was started with (`npx tsx
+ * bench/memory.ts`), or, inside `npm run bench`, the bench's own entry (bench/start.js: the
+ * build when it is current, else tsx), which hands `--memory-child` to `memoryChild`.
+ */
+function childArguments(hours: number): string[] {
+  return runDirectly ? [...process.execArgv, self, '--child', String(hours)] : [path.join(path.dirname(self), 'start.js'), '--memory-child', String(hours)];
+}
 
 /** Child mode: one pibt run, then its own peak RSS as one JSON line. */
-async function child(hours: number): Promise<void> {
+export async function memoryChild(hours: number): Promise<void> {
   const { benchPibt } = await import('./pibt.ts');
   const row = benchPibt(hours);
   const peakRssMb = process.resourceUsage().maxRSS / 1024;
@@ -39,7 +50,7 @@ async function child(hours: number): Promise<void> {
 export function benchMemory(hoursList: number[] = [1, 6, 24]): MemoryBenchRow[] {
   const rows: MemoryBenchRow[] = [];
   for (const hours of hoursList) {
-    const result = spawnSync(process.execPath, [...process.execArgv, self, '--child', String(hours)], { encoding: 'utf8', maxBuffer: 1 << 20 });
+    const result = spawnSync(process.execPath, childArguments(hours), { encoding: 'utf8', maxBuffer: 1 << 20 });
     if (result.status !== 0) throw new Error(`memory bench child (${hours} h) failed: ${result.stderr}`);
     const measured = JSON.parse(result.stdout.trim().split('\n').pop()!) as { robots: number; delivered: number; realTimeFactor: number; agentSteps: number; peakRssMb: number };
     rows.push({
@@ -57,11 +68,11 @@ export function benchMemory(hoursList: number[] = [1, 6, 24]): MemoryBenchRow[] 
   return rows;
 }
 
-if (process.argv[1] === self) {
+if (runDirectly) {
   const args = process.argv.slice(2);
   const childIndex = args.indexOf('--child');
   if (childIndex >= 0) {
-    await child(Number(args[childIndex + 1]));
+    await memoryChild(Number(args[childIndex + 1]));
   } else {
     const list = args.find((a) => !a.startsWith('--'));
     const rows = benchMemory(list === undefined ? undefined : list.split(',').map(Number));

@@ -11,6 +11,9 @@
  *   npm run bench -- --json       one JSON array of rows
  *   npm run bench -- --quick      skip the slow rows (munkres-js at 1000, pibt at 1,000 and 10,000 robots, the replay viewer, memory)
  *   npm run bench -- --only NAME  only rows whose name starts with NAME (engine, policy, pibt, replay, search, assignment, memory, sweep, size)
+ *
+ * `npm run bench` starts bench/start.js, which runs this file compiled (build/build.js) when
+ * the build is current, else through tsx; every row says which in `loader`.
  */
 import { loadScenarioFile } from '../scenarios/load.ts';
 import { prepareSetup } from '../experiments/replications.ts';
@@ -46,6 +49,8 @@ function measure(name: string, scenario: Scenario): Row {
     planningShare: Number((record.timing.planningSeconds / record.timing.wallSeconds).toFixed(3)),
     realTimeFactor: Math.round((scenario.run.hours * 3600) / record.timing.wallSeconds),
     delivered: record.delivered,
+    // Wall time per delivered task: the same work in the units a sizing run pays for.
+    wallMsPerDelivered: record.delivered > 0 ? Number(((record.timing.wallSeconds * 1000) / record.delivered).toFixed(3)) : null,
     collisions: record.collisions,
     // Robots the planned policies rest on rest cells beyond the parking spots (sim/rest-cells.ts).
     restCells: record.policyCounters.restCells ?? 0,
@@ -60,67 +65,82 @@ function demo(policy: string, robots: number, hours: number): Scenario {
   return { ...scenario, demand: { kind: 'saturated', mode: 'delivery', pickups: { kind: 'uniform' }, drops: { skew: 0.6, kind: 'zipf' } } };
 }
 
-if (wanted('engine')) {
-  for (const robots of [10, 20, 40]) rows.push(measure('engine', demo('token-passing', robots, 8)));
-}
-if (wanted('policy')) {
-  for (const factory of policies) {
-    for (const robots of [40, 100, 200]) {
-      // The demo hall has 38 parking spots: robots beyond them start on rest cells, where
-      // token passing and flow-batch also rest them (pibt and greedy-reactive do not use them).
-      rows.push(measure('policy', demo(factory.name, robots, 2)));
+/** Which code ran: `build` (compiled by build/build.js) or `tsx` (the sources through the loader). */
+const loader = process.env.FLEETWRIGHT_BENCH_LOADER ?? 'tsx';
+
+async function main(): Promise<void> {
+  if (wanted('engine')) {
+    for (const robots of [10, 20, 40]) rows.push(measure('engine', demo('token-passing', robots, 8)));
+  }
+  if (wanted('policy')) {
+    for (const factory of policies) {
+      for (const robots of [40, 100, 200]) {
+        // The demo hall has 38 parking spots: robots beyond them start on rest cells, where
+        // token passing and flow-batch also rest them (pibt and greedy-reactive do not use them).
+        rows.push(measure('policy', demo(factory.name, robots, 2)));
+      }
     }
   }
-}
-if (wanted('pibt') && !quick && policies.some((p) => p.name === 'pibt')) {
-  const { benchPibt, benchPibt10k } = await import('./pibt.ts');
-  rows.push(benchPibt() as unknown as Row);
-  log(`pibt 1,000 robots: ${rows[rows.length - 1].realTimeFactor}x real time`);
-  rows.push(benchPibt10k() as unknown as Row);
-  log(`pibt-10k 10,000 robots: ${rows[rows.length - 1].realTimeFactor}x real time`);
-}
-if (wanted('replay') && !quick) {
-  const { benchReplay } = await import('./replay.ts');
-  rows.push((await benchReplay()) as unknown as Row);
-}
-if (wanted('search')) {
-  const { benchSearch } = await import('./search.ts');
-  for (const row of benchSearch(quick)) {
-    rows.push(row);
-    log(`${row.name} ${JSON.stringify(row)}`);
+  if (wanted('pibt') && !quick && policies.some((p) => p.name === 'pibt')) {
+    const { benchPibt, benchPibt10k } = await import('./pibt.ts');
+    rows.push(benchPibt() as unknown as Row);
+    log(`pibt 1,000 robots: ${rows[rows.length - 1].realTimeFactor}x real time`);
+    rows.push(benchPibt10k() as unknown as Row);
+    log(`pibt-10k 10,000 robots: ${rows[rows.length - 1].realTimeFactor}x real time`);
   }
-}
-if (wanted('memory') && !quick && policies.some((p) => p.name === 'pibt')) {
-  const { benchMemory } = await import('./memory.ts');
-  for (const row of benchMemory()) {
-    log(`memory pibt ${row.robots} robots ${row.simulatedHours} h: peak RSS ${row.peakRssMb} MB`);
-    rows.push(row as unknown as Row);
+  if (wanted('replay') && !quick) {
+    const { benchReplay } = await import('./replay.ts');
+    rows.push((await benchReplay()) as unknown as Row);
   }
-}
-if (wanted('assignment')) {
-  const { benchAssignment } = await import('./assignment.ts');
-  for (const row of await benchAssignment(quick ? [200, 500] : [200, 500, 1000])) rows.push(row as unknown as Row);
-}
+  if (wanted('search')) {
+    const { benchSearch } = await import('./search.ts');
+    for (const row of benchSearch(quick)) {
+      rows.push(row);
+      log(`${row.name} ${JSON.stringify(row)}`);
+    }
+  }
+  if (wanted('memory') && !quick && policies.some((p) => p.name === 'pibt')) {
+    const { benchMemory } = await import('./memory.ts');
+    for (const row of benchMemory()) {
+      log(`memory pibt ${row.robots} robots ${row.simulatedHours} h: peak RSS ${row.peakRssMb} MB`);
+      rows.push(row as unknown as Row);
+    }
+  }
+  if (wanted('assignment')) {
+    const { benchAssignment } = await import('./assignment.ts');
+    for (const row of await benchAssignment(quick ? [200, 500] : [200, 500, 1000])) rows.push(row as unknown as Row);
+  }
 
-if (wanted('sweep')) {
-  const { benchSweep } = await import('./sweep.ts');
-  for (const row of await benchSweep([1, 2])) {
-    log(`sweep ${row.workers} workers: ${row.runsPerMinute} runs/min`);
+  if (wanted('sweep')) {
+    const { benchSweep } = await import('./sweep.ts');
+    for (const row of await benchSweep([1, 2])) {
+      log(`sweep ${row.workers} workers: ${row.runsPerMinute} runs/min`);
+      rows.push(row as Row);
+    }
+  }
+  if (wanted('size')) {
+    const { benchSize } = await import('./sweep.ts');
+    const row = await benchSize();
+    log(`size: demo at ${row.target} tasks/h in ${row.wallSeconds} s`);
     rows.push(row as Row);
   }
-}
-if (wanted('size')) {
-  const { benchSize } = await import('./sweep.ts');
-  const row = await benchSize();
-  log(`size: demo at ${row.target} tasks/h in ${row.wallSeconds} s`);
-  rows.push(row as Row);
+
+  for (const row of rows) row.loader = loader;
+  if (json) {
+    process.stdout.write(`${JSON.stringify(rows, null, 2)}\n`);
+  } else {
+    const columns = [...new Set(rows.flatMap((r) => Object.keys(r)))];
+    const table = [columns, ...rows.map((r) => columns.map((c) => (r[c] === undefined ? '' : String(r[c]))))];
+    const widths = columns.map((_, i) => Math.max(...table.map((r) => r[i].length)));
+    for (const r of table) process.stdout.write(`${r.map((v, i) => v.padStart(widths[i])).join('  ')}\n`);
+  }
 }
 
-if (json) {
-  process.stdout.write(`${JSON.stringify(rows, null, 2)}\n`);
+const memoryChildIndex = args.indexOf('--memory-child');
+if (memoryChildIndex >= 0) {
+  // A child of the memory rows (bench/memory.ts): one pibt run in a fresh process.
+  const { memoryChild } = await import('./memory.ts');
+  await memoryChild(Number(args[memoryChildIndex + 1]));
 } else {
-  const columns = [...new Set(rows.flatMap((r) => Object.keys(r)))];
-  const table = [columns, ...rows.map((r) => columns.map((c) => (r[c] === undefined ? '' : String(r[c]))))];
-  const widths = columns.map((_, i) => Math.max(...table.map((r) => r[i].length)));
-  for (const r of table) process.stdout.write(`${r.map((v, i) => v.padStart(widths[i])).join('  ')}\n`);
+  await main();
 }

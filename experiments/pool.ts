@@ -36,6 +36,11 @@ export interface ReplicationPool {
   close(): Promise<void>;
 }
 
+// The worker's entry sits beside this module: under tsx, experiments/replication-worker.js
+// (registers tsx in the thread, then loads replication-worker.ts); under the build, the
+// compiled worker beside the bundle, because this file keeps the bundle's own location
+// (the marker "build: bundle location", read by build/build.js). Main thread and workers
+// therefore always run the same code.
 const workerFile = fileURLToPath(new URL('./replication-worker.js', import.meta.url));
 
 export function createPool(workers: number): ReplicationPool {
