@@ -11,6 +11,7 @@
  *   npm run bench -- --json       one JSON array of rows
  *   npm run bench -- --quick      skip the slow rows (munkres-js at 1000, pibt at 1,000 and 10,000 robots, the replay viewer, memory)
  *   npm run bench -- --only NAME  only rows whose name starts with NAME (engine, policy, pibt, replay, search, assignment, memory, sweep, size)
+ *   npm run bench -- --robots N   engine and policy rows: only the rows with N robots
  *
  * `npm run bench` starts bench/start.js, which runs this file compiled (build/build.js) when
  * the build is current, else through tsx; every row says which in `loader`.
@@ -27,6 +28,9 @@ const quick = args.includes('--quick');
 const onlyIndex = args.indexOf('--only');
 const only = onlyIndex >= 0 ? args[onlyIndex + 1] : null;
 const wanted = (name: string) => only === null || name.startsWith(only);
+const robotsIndex = args.indexOf('--robots');
+const onlyRobots = robotsIndex >= 0 ? Number(args[robotsIndex + 1]) : null;
+const fleetWanted = (robots: number) => onlyRobots === null || robots === onlyRobots;
 
 type Row = Record<string, string | number | boolean | null>;
 const rows: Row[] = [];
@@ -70,11 +74,12 @@ const loader = process.env.FLEETWRIGHT_BENCH_LOADER ?? 'tsx';
 
 async function main(): Promise<void> {
   if (wanted('engine')) {
-    for (const robots of [10, 20, 40]) rows.push(measure('engine', demo('token-passing', robots, 8)));
+    for (const robots of [10, 20, 40]) if (fleetWanted(robots)) rows.push(measure('engine', demo('token-passing', robots, 8)));
   }
   if (wanted('policy')) {
     for (const factory of policies) {
       for (const robots of [40, 100, 200]) {
+        if (!fleetWanted(robots)) continue;
         // The demo hall has 38 parking spots: robots beyond them start on rest cells, where
         // token passing and flow-batch also rest them (pibt and greedy-reactive do not use them).
         rows.push(measure('policy', demo(factory.name, robots, 2)));
