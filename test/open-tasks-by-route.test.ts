@@ -1,7 +1,8 @@
 /**
  * OpenTasksByRoute (policies/token-passing/open-tasks-by-route.ts): after any sequence of
  * releases and assignments, each route's count and earliest task equal what a scan of the
- * world's open list gives (the list token passing used to scan on every request).
+ * world's open list gives (the list token passing used to scan on every request), and the
+ * routes of each pickup group are exactly that pickup's, with its open count.
  */
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
@@ -39,6 +40,19 @@ describe('OpenTasksByRoute', () => {
           }
           // Every open route is indexed.
           for (const t of world.openTasks) expect(seen.has(`${world.taskPickup[t]}-${world.taskDrop[t]}`)).toBe(true);
+          // Pickup groups: each route in exactly one group, its pickup's, and each group's
+          // open count is the open list's count of tasks from that pickup.
+          const listed = new Set<number>();
+          for (let g = 0; g < index.groupCount; g++) {
+            const pickup = index.groupPickup[g];
+            for (let r = index.groupFirst[g]; r >= 0; r = index.nextOfPickup[r]) {
+              expect(listed.has(r)).toBe(false);
+              listed.add(r);
+              expect(index.pickup[r]).toBe(pickup);
+            }
+            expect(index.groupOpen[g]).toBe(world.openTasks.filter((t) => world.taskPickup[t] === pickup).length);
+          }
+          expect(listed.size).toBe(index.routeCount);
         };
         for (const o of ops) {
           if (o.kind === 'release') {

@@ -16,31 +16,52 @@
  * indexed: `sync` returns false and the caller scans the open list instead.
  *
  * Each route keeps its tasks in release order in an array with a head index: taking the
- * earliest is O(1); taking another one (rare) is a splice.
+ * earliest is O(1); taking another one (rare) is a splice. Routes are grouped by pickup
+ * (a linked list per pickup, counts in typed arrays), so a request looks at a pickup once:
+ * all its routes share its distance and its endpoint test.
  */
 import type { World } from '../../sim/world.ts';
 
+const none = -1;
+
 export class OpenTasksByRoute {
   private readonly routeOf = new Map<number, number>();
-  /** Per route: pickup and drop cell, its open tasks in release order from `head`. */
-  readonly pickup: number[] = [];
-  readonly drop: number[] = [];
+  /** Per route: pickup and drop cell (indexes below `routeCount`). */
+  pickup = new Int32Array(64);
+  drop = new Int32Array(64);
+  /** Per route: open tasks on it, and the next route of the same pickup (-1 ends the list). */
+  routeOpen = new Int32Array(64);
+  nextOfPickup = new Int32Array(64);
   private readonly tasks: number[][] = [];
-  private readonly head: number[] = [];
+  private head = new Int32Array(64);
+  private routes = 0;
+  /** Per pickup group (first-seen order): its cell, its first route, and its open tasks on all routes. */
+  groupPickup = new Int32Array(16);
+  groupFirst = new Int32Array(16);
+  groupOpen = new Int32Array(16);
+  private groups = 0;
+  /** Group of each pickup cell, or -1. */
+  private readonly groupOf: Int32Array;
   /** Serials below this are indexed (or were never open). */
   private nextSerial = 0;
   /** Set once a task with a return cell is seen; from then on the index is not used. */
   private roundTrips = false;
 
-  constructor(private readonly cellCount: number) {}
+  constructor(private readonly cellCount: number) {
+    this.groupOf = new Int32Array(cellCount).fill(none);
+  }
 
   get routeCount(): number {
-    return this.pickup.length;
+    return this.routes;
+  }
+
+  get groupCount(): number {
+    return this.groups;
   }
 
   /** Open tasks on route `r`. */
   count(r: number): number {
-    return this.tasks[r].length - this.head[r];
+    return this.routeOpen[r];
   }
 
   /** The earliest open task on route `r` (count(r) > 0). */
@@ -61,26 +82,53 @@ export class OpenTasksByRoute {
         this.roundTrips = true;
         return false;
       }
-      const key = world.taskPickup[task] * this.cellCount + world.taskDrop[task];
+      const pickup = world.taskPickup[task];
+      const key = pickup * this.cellCount + world.taskDrop[task];
       let route = this.routeOf.get(key);
-      if (route === undefined) {
-        route = this.pickup.length;
-        this.routeOf.set(key, route);
-        this.pickup.push(world.taskPickup[task]);
-        this.drop.push(world.taskDrop[task]);
-        this.tasks.push([]);
-        this.head.push(0);
-      }
+      if (route === undefined) route = this.addRoute(key, pickup, world.taskDrop[task]);
       this.tasks[route].push(task);
+      this.routeOpen[route]++;
+      this.groupOpen[this.groupOf[pickup]]++;
       this.nextSerial = serial[task] + 1;
     }
     return true;
   }
 
+  private addRoute(key: number, pickup: number, drop: number): number {
+    const route = this.routes++;
+    if (route === this.pickup.length) {
+      this.pickup = grown(this.pickup);
+      this.drop = grown(this.drop);
+      this.routeOpen = grown(this.routeOpen);
+      this.nextOfPickup = grown(this.nextOfPickup);
+      this.head = grown(this.head);
+    }
+    let group = this.groupOf[pickup];
+    if (group < 0) {
+      group = this.groups++;
+      if (group === this.groupPickup.length) {
+        this.groupPickup = grown(this.groupPickup);
+        this.groupFirst = grown(this.groupFirst);
+        this.groupOpen = grown(this.groupOpen);
+      }
+      this.groupOf[pickup] = group;
+      this.groupPickup[group] = pickup;
+      this.groupFirst[group] = none;
+    }
+    this.routeOf.set(key, route);
+    this.pickup[route] = pickup;
+    this.drop[route] = drop;
+    this.nextOfPickup[route] = this.groupFirst[group];
+    this.groupFirst[group] = route;
+    this.tasks.push([]);
+    return route;
+  }
+
   /** The policy took an open task (World.assign). */
   remove(world: World, task: number): void {
     if (this.roundTrips) return;
-    const route = this.routeOf.get(world.taskPickup[task] * this.cellCount + world.taskDrop[task]);
+    const pickup = world.taskPickup[task];
+    const route = this.routeOf.get(pickup * this.cellCount + world.taskDrop[task]);
     if (route === undefined) return;
     const list = this.tasks[route];
     let head = this.head[route];
@@ -91,6 +139,8 @@ export class OpenTasksByRoute {
       if (at < 0) return;
       list.splice(at, 1);
     }
+    this.routeOpen[route]--;
+    this.groupOpen[this.groupOf[pickup]]--;
     // Drop the taken prefix now and then, so the arrays do not grow with the run.
     if (head >= 64 && 2 * head >= list.length) {
       list.splice(0, head);
@@ -98,4 +148,10 @@ export class OpenTasksByRoute {
     }
     this.head[route] = head;
   }
+}
+
+function grown(array: Int32Array): Int32Array<ArrayBuffer> {
+  const out = new Int32Array(2 * array.length);
+  out.set(array);
+  return out;
 }

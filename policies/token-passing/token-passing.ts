@@ -100,8 +100,6 @@ export class TokenPassing implements Policy {
   private candidatesRevision = -1;
   private readonly pickupMark: Int32Array;
   private pickupMarkId = 0;
-  /** Where each pickup's candidate sits in `candidates` during a rebuild. */
-  private readonly candidateAt: Int32Array;
   /** The open tasks by route, so a rebuild looks at one task per route (delivery floors). */
   private readonly routes: OpenTasksByRoute;
   /** Open tasks held back at the last rebuild (an endpoint ends a robot's path), and their task-ticks since the start. */
@@ -146,7 +144,6 @@ export class TokenPassing implements Policy {
       if (kind === CellKind.Pickup || kind === CellKind.Drop || kind === CellKind.Storage) this.isTaskEndpoint[c] = 1;
     }
     this.pickupMark = new Int32Array(layout.cellCount);
-    this.candidateAt = new Int32Array(layout.cellCount);
     this.routes = new OpenTasksByRoute(layout.cellCount);
     // Every robot asks at most once per step, plus once more when displaced by a swap.
     this.requestQueue = new Int32Array(2 * world.robotCount);
@@ -216,32 +213,39 @@ export class TokenPassing implements Policy {
     this.candidatesVersion = world.version;
     this.candidatesRevision = this.restRevision;
     const endRobot = this.table.endRobot;
-    const mark = this.pickupMark;
-    const id = ++this.pickupMarkId;
     let count = 0;
     let held = 0;
     if (this.routes.sync(world)) {
-      // One look per route: its earliest task stands for all of them.
+      // One look per pickup, then per route of it: a route's earliest task stands for all of
+      // its tasks, and the pickup's earliest eligible one for the pickup.
       const routes = this.routes;
       const serial = world.taskSerial;
-      for (let r = 0; r < routes.routeCount; r++) {
-        const tasks = routes.count(r);
-        if (tasks === 0) continue;
-        const pickup = routes.pickup[r];
-        if (endRobot[pickup] >= 0 || endRobot[routes.drop[r]] >= 0) {
-          held += tasks;
+      const routeOpen = routes.routeOpen;
+      const routeDrop = routes.drop;
+      const nextOfPickup = routes.nextOfPickup;
+      for (let g = 0; g < routes.groupCount; g++) {
+        const open = routes.groupOpen[g];
+        if (open === 0) continue;
+        if (endRobot[routes.groupPickup[g]] >= 0) {
+          held += open;
           continue;
         }
-        const task = routes.first(r);
-        if (mark[pickup] === id) {
-          // Keep the earlier of two routes from one pickup.
-          const at = this.candidateAt[pickup];
-          if (serial[task] < serial[this.candidates[at]]) this.candidates[at] = task;
-          continue;
+        let best = -1;
+        let bestSerial = Infinity;
+        for (let r = routes.groupFirst[g]; r >= 0; r = nextOfPickup[r]) {
+          const tasks = routeOpen[r];
+          if (tasks === 0) continue;
+          if (endRobot[routeDrop[r]] >= 0) {
+            held += tasks;
+            continue;
+          }
+          const task = routes.first(r);
+          if (serial[task] < bestSerial) {
+            best = task;
+            bestSerial = serial[task];
+          }
         }
-        mark[pickup] = id;
-        this.candidateAt[pickup] = count;
-        count = this.addCandidate(count, task);
+        if (best >= 0) count = this.addCandidate(count, best);
       }
       // Release order, as a scan of the open list would meet them (ties go to the earlier);
       // one candidate per pickup, so a few entries: insertion sort.
@@ -257,6 +261,8 @@ export class TokenPassing implements Policy {
       }
     } else {
       const open = world.openTasks;
+      const mark = this.pickupMark;
+      const id = ++this.pickupMarkId;
       for (let i = 0; i < open.length; i++) {
         const task = open[i];
         const pickup = world.taskPickup[task];
@@ -300,16 +306,21 @@ export class TokenPassing implements Policy {
       if (this.routes.sync(world)) {
         const routes = this.routes;
         const serial = world.taskSerial;
-        for (let r = 0; r < routes.routeCount; r++) {
-          if (routes.count(r) === 0) continue;
-          const pickup = routes.pickup[r];
+        const routeOpen = routes.routeOpen;
+        const routeDrop = routes.drop;
+        const nextOfPickup = routes.nextOfPickup;
+        for (let g = 0; g < routes.groupCount; g++) {
+          if (routes.groupOpen[g] === 0) continue;
+          const pickup = routes.groupPickup[g];
           const d = toRobot[pickup];
-          if (d > bestDistance) continue;
-          if (restsOther(endRobot, pickup, robot, robot) || restsOther(endRobot, routes.drop[r], robot, robot)) continue;
-          const task = routes.first(r);
-          if (d === bestDistance && serial[task] > serial[best]) continue;
-          best = task;
-          bestDistance = d;
+          if (d > bestDistance || restsOther(endRobot, pickup, robot, robot)) continue;
+          for (let r = routes.groupFirst[g]; r >= 0; r = nextOfPickup[r]) {
+            if (routeOpen[r] === 0 || restsOther(endRobot, routeDrop[r], robot, robot)) continue;
+            const task = routes.first(r);
+            if (d === bestDistance && serial[task] > serial[best]) continue;
+            best = task;
+            bestDistance = d;
+          }
         }
       } else {
         const open = world.openTasks;
