@@ -216,7 +216,7 @@ export class World {
     if (task < 0 || task >= this.taskCount || this.taskState[task] !== TaskState.Open) {
       throw new RunError(`policy assigned task ${task}, which is not open`);
     }
-    const index = this.openTasks.indexOf(task);
+    const index = openListIndex(this, task);
     if (index >= 0) this.openTasks.splice(index, 1);
     this.setState(task, TaskState.Assigned);
     this.taskRobot[task] = robot;
@@ -370,4 +370,23 @@ export function insertByRelease(world: World, task: number): void {
   let i = open.length;
   while (i > 0 && serial[open[i - 1]] > serial[task]) i--;
   open.splice(i, 0, task);
+}
+
+/**
+ * Where `task` sits in the open list, or -1. The list is in release order, so a binary search
+ * by serial finds it (a deep capacity pool holds thousands of open tasks); a linear scan
+ * answers if the order were ever broken.
+ */
+function openListIndex(world: World, task: number): number {
+  const open = world.openTasks;
+  const serial = world.taskSerial;
+  const key = serial[task];
+  let lo = 0;
+  let hi = open.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >>> 1;
+    if (serial[open[mid]] < key) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo < open.length && open[lo] === task ? lo : open.indexOf(task);
 }
