@@ -78,7 +78,10 @@ export interface DetectorEpisode extends DeadlockEpisode {
 }
 
 export interface EvaluationResult {
-  /** Episodes found at this tick that the modelled operator may clear (deadlocks and livelocks). */
+  /**
+   * Episodes found at this tick that the modelled operator may clear (deadlocks and
+   * livelocks). The detector refills the same object at every evaluation: read it before the next.
+   */
   clearable: number[];
 }
 
@@ -119,9 +122,12 @@ export class DeadlockDetector {
   private stamp = 0;
   private readonly queuedNow: Int32Array;
   private touchedStations: number[] = [];
+  /** The other of two lists that take turns as `touchedStations` (no list per evaluation). */
+  private touchedSpare: number[] = [];
   /** Per cell: the last tick a robot was in service there (handling ended or still going on). */
   private readonly lastServed: Int32Array;
   private readonly livelockCandidates: number[] = [];
+  private readonly result: EvaluationResult = { clearable: [] };
   /** Robots stuck (in a closed set) at the last evaluation, and robots in an episode now. */
   private stuckCount = 0;
   private members = 0;
@@ -320,12 +326,15 @@ export class DeadlockDetector {
     if (blocked > 0) this.classifyBlocked(tick, world);
     else this.noneBlocked(tick);
 
-    const clearable: number[] = [];
+    // One result object, refilled at every evaluation (the engine reads it at once).
+    const result = this.result;
+    const clearable = result.clearable;
+    clearable.length = 0;
     if (this.members > 0) this.membersLeave(tick, world);
     if (this.stuckCount > 0) this.findDeadlocks(tick, world, clearable);
     if (candidates.length > 0) this.findLivelocks(tick, world, clearable);
     this.findGridlock(tick, world, delivered, idle);
-    return { clearable };
+    return result;
   }
 
   /**
@@ -375,7 +384,8 @@ export class DeadlockDetector {
 
     // Queue time per station (robots queued behind the robot in service there).
     for (const s of this.touchedStations) this.queuedNow[s] = 0;
-    const touched: number[] = [];
+    const touched = this.touchedSpare;
+    touched.length = 0;
     for (let r = 0; r < robots; r++) {
       if (status[r] !== WaitStatus.Blocked) {
         // Only blocked robots keep their station mark.
@@ -389,6 +399,7 @@ export class DeadlockDetector {
     }
     for (const s of this.touchedStations) if (this.queuedNow[s] === 0) this.onQueue(s, tick, 0);
     for (const s of touched) this.onQueue(s, tick, this.queuedNow[s]);
+    this.touchedSpare = this.touchedStations;
     this.touchedStations = touched;
 
     // Stuck robots: blocked and reaching no sink.
@@ -410,7 +421,7 @@ export class DeadlockDetector {
       this.queuedNow[s] = 0;
       this.onQueue(s, tick, 0);
     }
-    this.touchedStations = [];
+    this.touchedStations.length = 0;
     if (this.stuckCount > 0) {
       this.stuckSince.fill(-1);
       this.stuckCount = 0;
