@@ -18,11 +18,14 @@
  * Each route keeps its tasks in release order in an array with a head index: taking the
  * earliest is O(1); taking another one (rare) is a splice. Routes are grouped by pickup
  * (a linked list per pickup, counts in typed arrays), so a request looks at a pickup once:
- * all its routes share its distance and its endpoint test.
+ * all its routes share its distance and its endpoint test. Every change (a task indexed or
+ * taken) is also written to a log that the eligible-task list (eligible-tasks.ts) replays
+ * instead of rebuilding; it is cleared by the reader, and a log that fills up says so.
  */
 import type { World } from '../../sim/world.ts';
 
 const none = -1;
+const logCapacity = 1024;
 
 export class OpenTasksByRoute {
   private readonly routeOf = new Map<number, number>();
@@ -40,8 +43,15 @@ export class OpenTasksByRoute {
   groupFirst = new Int32Array(16);
   groupOpen = new Int32Array(16);
   private groups = 0;
-  /** Group of each pickup cell, or -1. */
+  /** Group of each pickup cell, or -1; group of each route. */
   private readonly groupOf: Int32Array;
+  groupOfRoute = new Int32Array(64);
+  /** Changes since the reader last cleared the log: route and task of each (taken: task as -1 - task). */
+  readonly logRoute = new Int32Array(logCapacity);
+  readonly logTask = new Int32Array(logCapacity);
+  logLength = 0;
+  /** More changes than the log holds were made since it was cleared (the reader rebuilds). */
+  logOverflowed = false;
   /** Serials below this are indexed (or were never open). */
   private nextSerial = 0;
   /** Set once a task with a return cell is seen; from then on the index is not used. */
@@ -90,6 +100,7 @@ export class OpenTasksByRoute {
       this.routeOpen[route]++;
       this.groupOpen[this.groupOf[pickup]]++;
       this.nextSerial = serial[task] + 1;
+      this.log(route, task);
     }
     return true;
   }
@@ -102,6 +113,7 @@ export class OpenTasksByRoute {
       this.routeOpen = grown(this.routeOpen);
       this.nextOfPickup = grown(this.nextOfPickup);
       this.head = grown(this.head);
+      this.groupOfRoute = grown(this.groupOfRoute);
     }
     let group = this.groupOf[pickup];
     if (group < 0) {
@@ -118,10 +130,31 @@ export class OpenTasksByRoute {
     this.routeOf.set(key, route);
     this.pickup[route] = pickup;
     this.drop[route] = drop;
+    this.groupOfRoute[route] = group;
     this.nextOfPickup[route] = this.groupFirst[group];
     this.groupFirst[group] = route;
     this.tasks.push([]);
     return route;
+  }
+
+  /** The route from `pickup` to `drop`, or -1 when no task of it was ever indexed. */
+  routeBetween(pickup: number, drop: number): number {
+    return this.routeOf.get(pickup * this.cellCount + drop) ?? none;
+  }
+
+  /** Empties the change log (its reader is up to date). */
+  clearLog(): void {
+    this.logLength = 0;
+    this.logOverflowed = false;
+  }
+
+  private log(route: number, entry: number): void {
+    if (this.logLength === logCapacity) {
+      this.logOverflowed = true;
+      return;
+    }
+    this.logRoute[this.logLength] = route;
+    this.logTask[this.logLength++] = entry;
   }
 
   /** The policy took an open task (World.assign). */
@@ -141,6 +174,7 @@ export class OpenTasksByRoute {
     }
     this.routeOpen[route]--;
     this.groupOpen[this.groupOf[pickup]]--;
+    this.log(route, -1 - task);
     // Drop the taken prefix now and then, so the arrays do not grow with the run.
     if (head >= 64 && 2 * head >= list.length) {
       list.splice(0, head);

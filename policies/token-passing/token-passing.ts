@@ -23,8 +23,9 @@
  *
  * Token requests are made cheap without changing any choice: what a robot may take depends
  * only on the open list and on where paths end, so one list of eligible tasks (the first
- * per pickup cell) serves every request until one of the two changes, and a robot that
- * found nothing asks again only then (a rest revision, not every reservation change).
+ * per pickup cell, eligible-tasks.ts: followed task by task while no path end moves) serves
+ * every request until one of the two changes, and a robot that found nothing asks again
+ * only then (a rest revision, not every reservation change).
  * The same list counts the open tasks held back by the endpoint rule (`heldBackTaskSeconds`),
  * which is what caps token passing on floors with few drops: at most one robot per drop is
  * on its way.
@@ -43,6 +44,7 @@ import { restSpotsForFleet } from '../../sim/rest-cells.ts';
 import { SpaceTimeAStar } from '../../sim/space-time-astar.ts';
 import { PlanExecution } from '../../sim/plan-execution.ts';
 import { Phase } from '../../sim/world.ts';
+import { EligibleTasks } from './eligible-tasks.ts';
 import { OpenTasksByRoute } from './open-tasks-by-route.ts';
 import { freeParkingSpots, planRest, planTask, readyTickOf, requestFor, type Planner } from '../shared/task-path.ts';
 
@@ -96,6 +98,9 @@ export class TokenPassing implements Policy {
    */
   private candidates = new Int32Array(64);
   private candidateCount = 0;
+  /** The list itself: kept by `eligible` on delivery floors, scanned into `scanCandidates` for round trips. */
+  private readonly eligible: EligibleTasks;
+  private scanCandidates = new Int32Array(64);
   private candidatesVersion = -1;
   private candidatesRevision = -1;
   private readonly pickupMark: Int32Array;
@@ -145,6 +150,7 @@ export class TokenPassing implements Policy {
     }
     this.pickupMark = new Int32Array(layout.cellCount);
     this.routes = new OpenTasksByRoute(layout.cellCount);
+    this.eligible = new EligibleTasks(this.routes);
     // Every robot asks at most once per step, plus once more when displaced by a swap.
     this.requestQueue = new Int32Array(2 * world.robotCount);
     this.endCell = new Int32Array(world.robotCount);
@@ -206,87 +212,53 @@ export class TokenPassing implements Policy {
     this.refreshCandidates();
   }
 
-  /** Rebuilds the eligible-task list (and the held-back count) when the open list or a path end changed. */
+  /** Brings the eligible-task list (and the held-back count) up to date when the open list or a path end changed. */
   private refreshCandidates(): void {
     const world = this.context.world;
     if (this.candidatesVersion === world.version && this.candidatesRevision === this.restRevision) return;
+    const revision = this.candidatesRevision;
     this.candidatesVersion = world.version;
     this.candidatesRevision = this.restRevision;
     const endRobot = this.table.endRobot;
+    if (this.routes.sync(world)) {
+      const eligible = this.eligible;
+      eligible.update(endRobot, world.taskSerial, revision === this.restRevision);
+      this.candidates = eligible.candidates;
+      this.candidateCount = eligible.count;
+      this.heldBack = eligible.held;
+      return;
+    }
+    // Round trips (the index declines them): scan the open list, first eligible task per pickup.
+    this.candidates = this.scanCandidates;
     let count = 0;
     let held = 0;
-    if (this.routes.sync(world)) {
-      // One look per pickup, then per route of it: a route's earliest task stands for all of
-      // its tasks, and the pickup's earliest eligible one for the pickup.
-      const routes = this.routes;
-      const serial = world.taskSerial;
-      const routeOpen = routes.routeOpen;
-      const routeDrop = routes.drop;
-      const nextOfPickup = routes.nextOfPickup;
-      for (let g = 0; g < routes.groupCount; g++) {
-        const open = routes.groupOpen[g];
-        if (open === 0) continue;
-        if (endRobot[routes.groupPickup[g]] >= 0) {
-          held += open;
-          continue;
-        }
-        let best = -1;
-        let bestSerial = Infinity;
-        for (let r = routes.groupFirst[g]; r >= 0; r = nextOfPickup[r]) {
-          const tasks = routeOpen[r];
-          if (tasks === 0) continue;
-          if (endRobot[routeDrop[r]] >= 0) {
-            held += tasks;
-            continue;
-          }
-          const task = routes.first(r);
-          if (serial[task] < bestSerial) {
-            best = task;
-            bestSerial = serial[task];
-          }
-        }
-        if (best >= 0) count = this.addCandidate(count, best);
+    const open = world.openTasks;
+    const mark = this.pickupMark;
+    const id = ++this.pickupMarkId;
+    for (let i = 0; i < open.length; i++) {
+      const task = open[i];
+      const pickup = world.taskPickup[task];
+      const back = world.taskReturn[task];
+      if (endRobot[pickup] >= 0 || endRobot[world.taskDrop[task]] >= 0 || (back >= 0 && endRobot[back] >= 0)) {
+        held++;
+        continue;
       }
-      // Release order, as a scan of the open list would meet them (ties go to the earlier);
-      // one candidate per pickup, so a few entries: insertion sort.
-      const candidates = this.candidates;
-      for (let i = 1; i < count; i++) {
-        const task = candidates[i];
-        let j = i;
-        while (j > 0 && serial[candidates[j - 1]] > serial[task]) {
-          candidates[j] = candidates[j - 1];
-          j--;
-        }
-        candidates[j] = task;
-      }
-    } else {
-      const open = world.openTasks;
-      const mark = this.pickupMark;
-      const id = ++this.pickupMarkId;
-      for (let i = 0; i < open.length; i++) {
-        const task = open[i];
-        const pickup = world.taskPickup[task];
-        const back = world.taskReturn[task];
-        if (endRobot[pickup] >= 0 || endRobot[world.taskDrop[task]] >= 0 || (back >= 0 && endRobot[back] >= 0)) {
-          held++;
-          continue;
-        }
-        if (mark[pickup] === id) continue;
-        mark[pickup] = id;
-        count = this.addCandidate(count, task);
-      }
+      if (mark[pickup] === id) continue;
+      mark[pickup] = id;
+      count = this.addCandidate(count, task);
     }
     this.candidateCount = count;
     this.heldBack = held;
   }
 
   private addCandidate(count: number, task: number): number {
-    if (count === this.candidates.length) {
+    if (count === this.scanCandidates.length) {
       const grown = new Int32Array(2 * count);
-      grown.set(this.candidates);
+      grown.set(this.scanCandidates);
+      this.scanCandidates = grown;
       this.candidates = grown;
     }
-    this.candidates[count] = task;
+    this.scanCandidates[count] = task;
     return count + 1;
   }
 
@@ -304,24 +276,8 @@ export class TokenPassing implements Policy {
       // there are open to it alone, so the shared list does not apply.
       const endRobot = this.table.endRobot;
       if (this.routes.sync(world)) {
-        const routes = this.routes;
-        const serial = world.taskSerial;
-        const routeOpen = routes.routeOpen;
-        const routeDrop = routes.drop;
-        const nextOfPickup = routes.nextOfPickup;
-        for (let g = 0; g < routes.groupCount; g++) {
-          if (routes.groupOpen[g] === 0) continue;
-          const pickup = routes.groupPickup[g];
-          const d = toRobot[pickup];
-          if (d > bestDistance || restsOther(endRobot, pickup, robot, robot)) continue;
-          for (let r = routes.groupFirst[g]; r >= 0; r = nextOfPickup[r]) {
-            if (routeOpen[r] === 0 || restsOther(endRobot, routeDrop[r], robot, robot)) continue;
-            const task = routes.first(r);
-            if (d === bestDistance && serial[task] > serial[best]) continue;
-            best = task;
-            bestDistance = d;
-          }
-        }
+        best = this.eligible.nearestForRester(robot, cell, toRobot, endRobot, world.taskSerial);
+        bestDistance = this.eligible.distance;
       } else {
         const open = world.openTasks;
         for (let i = 0; i < open.length; i++) {
