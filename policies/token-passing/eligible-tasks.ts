@@ -50,7 +50,6 @@ export class EligibleTasks {
     const routes = this.routes;
     const routeOpen = routes.routeOpen;
     const routeDrop = routes.drop;
-    const nextOfPickup = routes.nextOfPickup;
     let held = 0;
     for (let g = 0; g < routes.groupCount; g++) {
       const open = routes.groupOpen[g];
@@ -62,9 +61,10 @@ export class EligibleTasks {
       }
       let best = none;
       let bestSerial = Infinity;
-      for (let r = routes.groupFirst[g]; r >= 0; r = nextOfPickup[r]) {
+      const routesOfPickup = routes.openRoutes(g);
+      for (let i = 0; i < routesOfPickup.length; i++) {
+        const r = routesOfPickup[i];
         const tasks = routeOpen[r];
-        if (tasks === 0) continue;
         if (endRobot[routeDrop[r]] >= 0) {
           held += tasks;
           continue;
@@ -115,8 +115,10 @@ export class EligibleTasks {
     const routes = this.routes;
     let best = none;
     let bestSerial = Infinity;
-    for (let r = routes.groupFirst[g]; r >= 0; r = routes.nextOfPickup[r]) {
-      if (routes.routeOpen[r] === 0 || endRobot[routes.drop[r]] >= 0) continue;
+    const open = routes.openRoutes(g);
+    for (let i = 0; i < open.length; i++) {
+      const r = open[i];
+      if (endRobot[routes.drop[r]] >= 0) continue;
       const task = routes.first(r);
       if (serial[task] < bestSerial) {
         best = task;

@@ -17,8 +17,10 @@
  *
  * Each route keeps its tasks in release order in an array with a head index: taking the
  * earliest is O(1); taking another one (rare) is a splice. Routes are grouped by pickup
- * (a linked list per pickup, counts in typed arrays), so a request looks at a pickup once:
- * all its routes share its distance and its endpoint test. Every change (a task indexed or
+ * (counts in typed arrays, and per pickup the list of its routes that have open tasks, in no
+ * particular order), so a request looks at a pickup once: all its routes share its distance
+ * and its endpoint test, and routes without open tasks (most of them under light demand)
+ * are never visited. Every change (a task indexed or
  * taken) is also written to a log that the eligible-task list (eligible-tasks.ts) replays
  * instead of rebuilding; it is cleared by the reader, and a log that fills up says so.
  */
@@ -32,16 +34,16 @@ export class OpenTasksByRoute {
   /** Per route: pickup and drop cell (indexes below `routeCount`). */
   pickup = new Int32Array(64);
   drop = new Int32Array(64);
-  /** Per route: open tasks on it, and the next route of the same pickup (-1 ends the list). */
+  /** Per route: open tasks on it, and its place in its group's list of routes with open tasks (-1: not there). */
   routeOpen = new Int32Array(64);
-  nextOfPickup = new Int32Array(64);
+  private activeAt = new Int32Array(64);
   private readonly tasks: number[][] = [];
   private head = new Int32Array(64);
   private routes = 0;
-  /** Per pickup group (first-seen order): its cell, its first route, and its open tasks on all routes. */
+  /** Per pickup group (first-seen order): its cell, its open tasks on all routes, its routes with open tasks. */
   groupPickup = new Int32Array(16);
-  groupFirst = new Int32Array(16);
   groupOpen = new Int32Array(16);
+  private readonly groupRoutes: number[][] = [];
   private groups = 0;
   /** Group of each pickup cell, or -1; group of each route. */
   private readonly groupOf: Int32Array;
@@ -97,7 +99,7 @@ export class OpenTasksByRoute {
       let route = this.routeOf.get(key);
       if (route === undefined) route = this.addRoute(key, pickup, world.taskDrop[task]);
       this.tasks[route].push(task);
-      this.routeOpen[route]++;
+      if (this.routeOpen[route]++ === 0) this.activate(route);
       this.groupOpen[this.groupOf[pickup]]++;
       this.nextSerial = serial[task] + 1;
       this.log(route, task);
@@ -111,7 +113,7 @@ export class OpenTasksByRoute {
       this.pickup = grown(this.pickup);
       this.drop = grown(this.drop);
       this.routeOpen = grown(this.routeOpen);
-      this.nextOfPickup = grown(this.nextOfPickup);
+      this.activeAt = grown(this.activeAt);
       this.head = grown(this.head);
       this.groupOfRoute = grown(this.groupOfRoute);
     }
@@ -120,21 +122,42 @@ export class OpenTasksByRoute {
       group = this.groups++;
       if (group === this.groupPickup.length) {
         this.groupPickup = grown(this.groupPickup);
-        this.groupFirst = grown(this.groupFirst);
         this.groupOpen = grown(this.groupOpen);
       }
       this.groupOf[pickup] = group;
       this.groupPickup[group] = pickup;
-      this.groupFirst[group] = none;
+      this.groupRoutes.push([]);
     }
     this.routeOf.set(key, route);
     this.pickup[route] = pickup;
     this.drop[route] = drop;
     this.groupOfRoute[route] = group;
-    this.nextOfPickup[route] = this.groupFirst[group];
-    this.groupFirst[group] = route;
+    this.activeAt[route] = none;
     this.tasks.push([]);
     return route;
+  }
+
+  /** The routes of pickup group `g` that have open tasks, in no particular order (read only). */
+  openRoutes(g: number): readonly number[] {
+    return this.groupRoutes[g];
+  }
+
+  private activate(route: number): void {
+    const list = this.groupRoutes[this.groupOfRoute[route]];
+    this.activeAt[route] = list.length;
+    list.push(route);
+  }
+
+  /** Takes the route out of its group's list; the last one fills its place. */
+  private deactivate(route: number): void {
+    const list = this.groupRoutes[this.groupOfRoute[route]];
+    const at = this.activeAt[route];
+    const last = list.pop()!;
+    if (last !== route) {
+      list[at] = last;
+      this.activeAt[last] = at;
+    }
+    this.activeAt[route] = none;
   }
 
   /** The route from `pickup` to `drop`, or -1 when no task of it was ever indexed. */
@@ -172,7 +195,7 @@ export class OpenTasksByRoute {
       if (at < 0) return;
       list.splice(at, 1);
     }
-    this.routeOpen[route]--;
+    if (--this.routeOpen[route] === 0) this.deactivate(route);
     this.groupOpen[this.groupOf[pickup]]--;
     this.log(route, -1 - task);
     // Drop the taken prefix now and then, so the arrays do not grow with the run.
