@@ -77,8 +77,13 @@ function syncFolder(directory: string): void {
   }
 }
 
-/** Writes every file or none (see the header); throws InputError naming the failed path. */
-export function writeOutputFolder(directory: string, files: readonly OutputFile[], option = '--out'): void {
+/**
+ * Writes every file or none (see the header); throws InputError naming the failed path.
+ * `stale` names files an earlier result set may have left that this one does not produce
+ * (for example hourly.csv of a run with a demand profile, rerun without one): they are
+ * removed in the same swap, so the folder never mixes two runs' files.
+ */
+export function writeOutputFolder(directory: string, files: readonly OutputFile[], option = '--out', stale: readonly string[] = []): void {
   checkOutputFolder(
     directory,
     files.map((f) => f.name),
@@ -125,6 +130,23 @@ export function writeOutputFolder(directory: string, files: readonly OutputFile[
           throw Object.assign(new Error(target), { cause: error, target });
         }
         undo.push(existed ? () => renameSync(backup, target) : () => rmSync(target, { force: true }));
+      }
+      const produced = new Set(files.map((f) => f.name));
+      for (const name of stale) {
+        if (produced.has(name)) continue;
+        const target = path.join(directory, name);
+        try {
+          if (!lstatSync(target).isFile()) continue;
+        } catch {
+          continue; // absent
+        }
+        const backup = path.join(staging, `${name}.previous`);
+        try {
+          renameSync(target, backup);
+        } catch (error) {
+          throw Object.assign(new Error(target), { cause: error, target });
+        }
+        undo.push(() => renameSync(backup, target));
       }
     } catch (error) {
       for (const step of undo.reverse()) {

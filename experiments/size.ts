@@ -55,6 +55,8 @@ export interface CurvePoint {
   stationIdleFraction: Interval;
   busyRobots: Interval | null;
   stable: boolean | null;
+  /** The three-way reading of the stability test (RunSummary.stabilityVerdict): 'undetermined' when the backlog-growth interval still reaches material growth. */
+  stabilityVerdict: 'stable' | 'unstable' | 'undetermined' | null;
   backlogGrowthPerHour: Interval;
   verdict: 'meets' | 'fails' | 'undecided';
   because: string;
@@ -269,6 +271,7 @@ export async function sizeFleet(scenarioAtTarget: Scenario, options: SizeOptions
         stationIdleFraction: s.stationIdleFraction,
         busyRobots: optional<Interval>(loose.busyRobots, isInterval),
         stable: s.stable,
+        stabilityVerdict: s.stabilityVerdict,
         backlogGrowthPerHour: s.backlogGrowthPerHour,
         verdict: e.verdict,
         because: e.because,

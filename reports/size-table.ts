@@ -44,6 +44,7 @@ export interface SizeView {
     stationStarvedFraction: Interval;
     busyRobots: Interval | null;
     stable: boolean | null;
+    stabilityVerdict?: 'stable' | 'unstable' | 'undetermined' | null;
     verdict: string;
     because: string;
   }[];
@@ -102,7 +103,7 @@ export function renderSizeTable(d: SizeView): string {
         withHalf(c.leadTimeP95Seconds),
         Number.isFinite(c.stationStarvedFraction.mean) ? `${(c.stationStarvedFraction.mean * 100).toFixed(1)}%` : '-',
         c.busyRobots ? fixed(c.busyRobots.mean, 1) : '-',
-        c.stable === null ? '-' : c.stable ? 'yes' : 'no',
+        c.stable === null ? '-' : c.stabilityVerdict === 'undetermined' ? 'undetermined' : c.stable ? 'yes' : 'no',
         c.verdict === 'meets' ? 'meets' : `${c.verdict}: ${c.because}`,
       ]),
       ['robots', 'reps', 'throughput/h', 'per robot', 'lead mean s', 'lead p95 s', 'starved', 'busy', 'stable', 'verdict'],

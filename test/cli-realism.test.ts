@@ -124,5 +124,11 @@ describe('hourly profile', () => {
     expect(rows.slice(1).map((r) => r.split(',').slice(0, 3).join(','))).toEqual(['0,0.5,false', '1,1.5,true']);
     expect(result.stdout).toMatch(/hourly profile \(2 whole hours after the warm-up; .* peak hour 1 is what the site is sized for\)/);
     expect(result.stdout).toMatch(/\n1 \(peak\) +1\.50 /);
+    // The same folder rerun without the profile: its hourly.csv would describe the other run.
+    const flat = writeScenario(demoText);
+    const again = fleetwright('run', flat, '--hours', '1', '--reps', '2', '--out', out);
+    expect(again.status, again.stderr).toBe(0);
+    expect(readdirSync(out)).not.toContain('hourly.csv');
+    expect(readdirSync(out)).toContain('summary.json');
   });
 });

@@ -260,3 +260,25 @@ describe('size: bad options exit 2 with one line', () => {
     expect(result.status).toBe(2);
   });
 });
+
+describe('size table: the stable column', () => {
+  // A fleet whose stability test is undetermined (growth interval reaching material growth)
+  // must not read "yes": the column follows RunSummary.stabilityVerdict.
+  it('says undetermined, yes or no as the three-way verdict does', async () => {
+    const { renderSizeTable } = await import('../reports/size-table.ts');
+    const interval = (mean: number) => intervalOf([mean - 1, mean, mean + 1], 0.95);
+    const row = (robots: number, stable: boolean, stabilityVerdict: 'stable' | 'unstable' | 'undetermined') => ({
+      robots, replications: 3, throughputPerHour: interval(100 * robots), throughputPerRobot: 100, leadTimeSeconds: interval(60), leadTimeP95Seconds: interval(120),
+      stationStarvedFraction: interval(0.1), busyRobots: null, stable, stabilityVerdict, verdict: 'fails', because: 'x',
+    });
+    const text = renderSizeTable({
+      scenario: 's', target: 500, demand: 'poisson', policy: 'p', recommendedRobots: null, reason: 'none', handFormulaRobots: 5,
+      handFormula: { cycleSeconds: 36, loadSeconds: 1, loadedTravelSeconds: 1, unloadSeconds: 1, emptyTravelSeconds: 1, perRobotPerHour: 100, robotsExact: 5, lowerBoundRobots: 5 },
+      knee: null, congestionFrom: null, capacity: null, leadP95LimitSeconds: null, replications: 3, hours: 1, seed: 1, confidence: 0.95,
+      curve: [row(4, false, 'unstable'), row(5, true, 'undetermined'), row(6, true, 'stable')], capacityCurve: [], safety: 'note',
+    });
+    const lines = text.split('\n');
+    const cell = (robots: number) => lines.find((l) => l.startsWith(`${robots} `))!.trim().split(/\s{2,}/)[8];
+    expect([cell(4), cell(5), cell(6)]).toEqual(['no', 'undetermined', 'yes']);
+  });
+});

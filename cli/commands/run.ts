@@ -63,7 +63,7 @@ export async function runCommand(scenarioPath: string, json: boolean, outDirecto
       { name: 'lead-time-split.csv', content: leadTimeSplitCsv(parts.perReplication) },
       ...(hourly === null ? [] : [{ name: 'hourly.csv', content: hourly }]),
       ...reportInputContents([{ scenario, records }], [parts.cutIntervals], process.argv.slice(2)),
-    ]);
+    ], '--out', ['hourly.csv']);
   }
   if (json) process.stdout.write(`${toJson(parts.summary)}\n`);
   else process.stdout.write(`${renderRunTable(parts.summary)}\n`);

@@ -84,7 +84,7 @@ export function sizePage(results: ResultsFolder): { title: string; body: string 
       { label: 'lead mean (s)', value: (c: Json) => (c.stable === false ? `≥ ${fixed(c.leadTimeSeconds?.mean, 0)}` : intervalText(c.leadTimeSeconds, 0)), numeric: true },
       { label: 'lead p95 (s)', value: (c: Json) => (c.stable === false ? `≥ ${fixed(c.leadTimeP95Seconds?.mean, 0)}` : intervalText(c.leadTimeP95Seconds, 0)), numeric: true },
       { label: 'busy robots', value: (c: Json) => fixed(c.busyRobots?.mean, 1), numeric: true },
-      { label: 'stable', value: (c: Json) => (c.stable === null || c.stable === undefined ? '–' : c.stable ? 'yes' : 'NO') },
+      { label: 'stable', value: (c: Json) => (c.stable === null || c.stable === undefined ? '–' : c.stable === false ? 'NO' : c.stabilityVerdict === 'undetermined' ? 'undetermined' : 'yes') },
       { label: 'meets target', value: (c: Json) => (c.verdict === 'meets' ? 'yes' : c.verdict === 'fails' ? 'no' : String(c.verdict ?? '–')) },
       { label: 'because', value: (c: Json) => String(c.because ?? '') },
     ],
