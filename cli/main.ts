@@ -68,7 +68,7 @@ addRunOptions(
     .description('simulate a scenario and print throughput, station idle and starved time, lead time, robot time and deadlocks with intervals')
     .argument('<scenario>', 'scenario YAML file')
     .addOption(new Option('--policy <name>', 'dispatch-and-routing policy (overrides policy.name; see `fleetwright policies`)'))
-    .addOption(new Option('--out <dir>', 'also write summary.json, replications.csv, throughput.csv, stations.csv, cells.csv, lead-times.csv and context.json into this folder'))
+    .addOption(new Option('--out <dir>', 'also write summary.json, replications.csv, throughput.csv, stations.csv, lead-time-split.csv, cells.csv, lead-times.csv, context.json and, with a demand profile, hourly.csv into this folder'))
     .addOption(new Option('--record <file>', 'record robot motion of replication 1 for `fleetwright replay` (a .fwr file)'))
     .addOption(new Option('--record-window <from:to>', 'simulated seconds to record (default 0:1800)')),
 ).action(async (scenarioPath: string, options: RunOptionValues & { record?: string; recordWindow?: string }) => {
