@@ -169,11 +169,18 @@ export class DistanceFields {
   /** Fields rebuilt larger because a caller asked about a cell outside the cached window. */
   enlargements = 0;
 
-  /** `budgetBytes` bounds the cache (default 256 MiB); at least 16 whole-floor fields are kept. */
+  /**
+   * `budgetBytes` bounds the cache (default 256 MiB); at least 16 whole-floor fields are kept.
+   * `passable` (default the layout's own) lets a caller search a floor with extra cells closed,
+   * e.g. cells of robots that stand still for long (PIBT's detour fields): the caller owns the
+   * array, and must call `clear()` after changing it. A goal is searched from even when its own
+   * cell is closed (a robot heads for a goal taken by a fixed robot up to its neighbours).
+   */
   constructor(
     readonly layout: Layout,
     budgetBytes = 256 * 1024 * 1024,
     readonly margin = defaultMargin,
+    private readonly passable: Uint8Array = layout.passable,
   ) {
     this.cellX = new Int32Array(layout.cellCount);
     this.cellY = new Int32Array(layout.cellCount);
@@ -182,6 +189,17 @@ export class DistanceFields {
       this.cellY[c] = Math.floor(c / layout.width);
     }
     this.budgetBytes = Math.max(16 * (layout.width + 2) * (layout.height + 2), budgetBytes);
+  }
+
+  /** Fields cached now. */
+  get size(): number {
+    return this.cache.size;
+  }
+
+  /** Forgets every cached field (after the caller changed `passable`); holders keep theirs. */
+  clear(): void {
+    this.cache.clear();
+    this.cachedBytes = 0;
   }
 
   /** The field of `goal` covering `near` and its neighbours, built or enlarged when needed. */
@@ -248,7 +266,7 @@ export class DistanceFields {
     }
     const unvisited = this.unvisited;
     unvisited.fill(0, 0, size);
-    const passable = layout.passable;
+    const passable = this.passable;
     for (let y = 0; y < h; y++) {
       const from = (y0 + y) * layout.width + x0;
       unvisited.set(passable.subarray(from, from + w), (y + 1) * pw + 1);
@@ -258,7 +276,7 @@ export class DistanceFields {
     const queue = this.queue;
     const start = (this.cellY[goal] - y0 + 1) * pw + (this.cellX[goal] - x0 + 1);
     let tail = 0;
-    if (unvisited[start]) {
+    if (unvisited[start] || layout.passable[goal]) {
       unvisited[start] = 0;
       queue[tail++] = start;
     }
@@ -304,7 +322,7 @@ export class DistanceFields {
   private exact(goal: number, x0: number, y0: number, w: number, h: number, values: Uint8Array, searched: number): boolean {
     const layout = this.layout;
     const width = layout.width;
-    const passable = layout.passable;
+    const passable = this.passable;
     const pw = w + 2;
     const gx = this.cellX[goal];
     const gy = this.cellY[goal];
@@ -314,7 +332,8 @@ export class DistanceFields {
     const excess: number[] = [];
     // (x, y) on the ring of the window with floor at (ox, oy) just outside it is an exit.
     const consider = (x: number, y: number, ox: number, oy: number): boolean => {
-      if (!passable[y * width + x]) return true;
+      // A closed goal is still where paths end: it counts as an exit like an open cell.
+      if (!passable[y * width + x] && y * width + x !== goal) return true;
       if (ox < 0 || oy < 0 || ox >= width || oy >= layout.height || !passable[oy * width + ox]) return true;
       const p = (y - y0 + 1) * pw + (x - x0 + 1);
       if ((values[p] & reachedBit) === 0) return false;

@@ -163,6 +163,56 @@ describe('DistanceFields (windowed breadth-first fields, distance mod 4)', () =>
     expect(fields.to(goal, 6 * 40 + 6)).toBe(second);
   });
 
+  it('with extra cells closed (a caller-owned passable array) agrees with the pathfinding library on the floor with those cells walled, the goal open', () => {
+    // PIBT's detour fields close the cells of robots fixed for long; the reference is the
+    // pathfinding library's breadth-first search on the grid with those cells as walls (the
+    // goal itself stays open: a robot heads for a goal a fixed robot holds up to its side).
+    const random = seedrandom('distance-fields-closed');
+    const finder = new PF.BreadthFirstFinder({ allowDiagonal: false });
+    let compared = 0;
+    let cutOff = 0;
+    let grown = 0;
+    for (let g = 0; g < 60; g++) {
+      const width = 5 + Math.floor(random() * 25);
+      const height = 5 + Math.floor(random() * 15);
+      const { layout, kind } = randomLayout(random, width, height, 0.15);
+      if (layout.floorCells.length < 4) continue;
+      const passable = Uint8Array.from(layout.passable);
+      const fields = new DistanceFields(layout, undefined, 1, passable);
+      for (let round = 0; round < 3; round++) {
+        passable.set(layout.passable);
+        for (const c of layout.floorCells) if (random() < 0.12) passable[c] = 0;
+        fields.clear();
+        expect(fields.size).toBe(0);
+        for (let s = 0; s < 6; s++) {
+          const goal = layout.floorCells[Math.floor(random() * layout.floorCells.length)];
+          const matrix = Array.from({ length: height }, (_, y) =>
+            Array.from({ length: width }, (_, x) => {
+              const c = y * width + x;
+              return kind[c] === CellKind.Blocked || (passable[c] === 0 && c !== goal) ? 1 : 0;
+            }),
+          );
+          const grid = new PF.Grid(width, height, matrix);
+          for (let q = 0; q < 4; q++) {
+            const source = layout.floorCells[Math.floor(random() * layout.floorCells.length)];
+            if (passable[source] === 0 && source !== goal) continue;
+            const field = fields.to(goal, source);
+            const path = finder.findPath(source % width, Math.floor(source / width), goal % width, Math.floor(goal / width), grid.clone());
+            expect(field.reaches(source)).toBe(path.length > 0);
+            if (path.length > 0) expect(field.mod4(source)).toBe((path.length - 1) % 4);
+            else cutOff++;
+            compared++;
+          }
+        }
+      }
+      grown += fields.windowsGrown;
+    }
+    expect(compared).toBeGreaterThan(600);
+    // Both outcomes occur: cells the closed cells cut off, and windows the check had to grow.
+    expect(cutOff).toBeGreaterThan(20);
+    expect(grown).toBeGreaterThan(10);
+  });
+
   it('a goal on a blocked cell reaches nothing', () => {
     const layout = parseLayout(['.....', '..#..', '.....'].join('\n'));
     const field = new DistanceFields(layout).to(7, 0);

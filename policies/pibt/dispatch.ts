@@ -131,6 +131,7 @@ export class Dispatcher {
     const pool = idle.slice();
     for (let i = 0; i < open.length && pool.length > 0; i++) {
       const task = open[i];
+      if (this.taskBlocked(task)) continue;
       const table = this.distances.to(world.taskPickup[task]);
       let best = -1;
       let bestDistance = unreachable;
@@ -165,6 +166,7 @@ export class Dispatcher {
     for (let i = 0; i < open.length && left > 0; i++) {
       const task = open[i];
       const pickup = world.taskPickup[task];
+      if (this.taskBlocked(task)) continue;
       let order = orders.get(pickup);
       if (!order) {
         order = { robots: this.byDistance(idle, this.distances.to(pickup)), next: 0 };
@@ -220,6 +222,7 @@ export class Dispatcher {
     for (let i = 0; i < open.length; i++) {
       const task = open[i];
       const pickup = world.taskPickup[task];
+      if (this.taskBlocked(task)) continue;
       let slot = slotOf[pickup];
       if (slot < 0) {
         if (slotCell.length >= maxStations) {
@@ -346,6 +349,21 @@ export class Dispatcher {
     this.queuedCells.length = 0;
     for (const c of slotCell) queuedTicks[c] = 0;
     for (let i = 0; i < chosen.length; i += 2) give(chosen[i], chosen[i + 1]);
+  }
+
+  /**
+   * True while a broken-down robot stands on the task's pickup or drop: the task waits for
+   * the repair instead of sending a robot to queue there for the repair time (token passing
+   * holds such tasks back for the same reason: the cell ends another robot's path). Without
+   * breakdowns no robot is ever broken, so no choice changes.
+   */
+  private taskBlocked(task: number): boolean {
+    const world = this.world;
+    const broken = world.robotBroken;
+    const atPickup = world.occupant[world.taskPickup[task]];
+    if (atPickup >= 0 && broken[atPickup] === 1) return true;
+    const atDrop = world.occupant[world.taskDrop[task]];
+    return atDrop >= 0 && broken[atDrop] === 1;
   }
 
   /** Credit of a station whose oldest open task is `task`: ageing minus the queue term, in cells. */
