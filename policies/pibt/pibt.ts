@@ -131,6 +131,8 @@ export class Pibt implements Policy {
   private readonly onDetour: Uint8Array;
   /** The detour version the robot's detour field was fetched under. */
   private readonly detourVersion: Int32Array;
+  /** The closed-set version under which the robot's static gradient was last followed to its goal (-1: not yet for this goal). */
+  private readonly walkedVersion: Int32Array;
   /** Created at the first long-fixed robot (broken down or charging); null before. */
   private detours: DetourFields | null = null;
   private readonly band: Uint8Array;
@@ -197,6 +199,7 @@ export class Pibt implements Policy {
     this.goalField = new Array<DistanceField | null>(robots).fill(null);
     this.onDetour = new Uint8Array(robots);
     this.detourVersion = new Int32Array(robots);
+    this.walkedVersion = new Int32Array(robots).fill(-1);
     this.band = new Uint8Array(robots);
     this.changedMark = new Uint8Array(robots);
     this.parkingOf = new Int32Array(robots).fill(-1);
@@ -439,6 +442,7 @@ export class Pibt implements Policy {
         this.goal[r] = goal;
         this.goalField[r] = null;
         this.onDetour[r] = 0;
+        this.walkedVersion[r] = -1;
         changed.push(r);
       }
     }
@@ -538,6 +542,34 @@ export class Pibt implements Policy {
     }
   }
 
+  /**
+   * Follows one path down robot r's static gradient from `cell` to its goal; true when it
+   * steps onto a closed cell. A path through a closed cell may have a twin that avoids it
+   * (open floor): the detour field then gives the same distances, so switching costs only
+   * its search. Stops where the field's window ends (the neighbour check still applies).
+   */
+  private gradientMeetsClosed(r: number, goal: number, cell: number): boolean {
+    const detours = this.detours!;
+    this.walkedVersion[r] = detours.version;
+    const field = this.goalField[r]!;
+    const closed = detours.closed;
+    const neighbors = this.neighbors;
+    let c = cell;
+    for (let steps = 0; c !== goal && steps < this.context.layout.cellCount; steps++) {
+      const rank = field.rankAround(c);
+      if (rank < 0) return false;
+      let n = -1;
+      for (let d = 0; d < 4 && n < 0; d++) {
+        const v = neighbors[c * 4 + d];
+        if (v >= 0 && ((rank >> d) & 1) === 0) n = v;
+      }
+      if (n < 0) return false;
+      if (closed[n] === 1) return true;
+      c = n;
+    }
+    return false;
+  }
+
   /** True when a neighbour of `cell` that `farther` ranks closer is closed (a long-fixed robot stands there). */
   private closerIsClosed(cell: number, farther: number): boolean {
     const closed = this.detours!.closed;
@@ -589,10 +621,13 @@ export class Pibt implements Policy {
         const field = this.goalField[r];
         farther = field === null ? -2 : field.rankAround(cell);
         if (farther === -2) farther = (this.goalField[r] = this.context.distances.fields.to(goal, cell)).rankAround(cell);
-        // A neighbour the static field calls closer holds a robot fixed for long: detour.
-        if (farther >= 0 && this.detours !== null && this.detours.count > 0 && this.closerIsClosed(cell, farther)) {
+        // The static gradient runs into a robot fixed for long: detour. Looked at along the
+        // whole gradient once per goal and closed set (so the robot turns off before it
+        // drives into a dead end), and at the neighbours at every push.
+        const detours = this.detours;
+        if (farther >= 0 && detours !== null && detours.count > 0 && (this.closerIsClosed(cell, farther) || (this.walkedVersion[r] !== detours.version && this.gradientMeetsClosed(r, goal, cell)))) {
           this.onDetour[r] = 1;
-          this.detours.switches++;
+          detours.switches++;
           this.goalField[r] = null;
           farther = this.detourRank(r, goal, cell);
         }
