@@ -58,5 +58,6 @@ export function realismColumns(summary: RunSummary, w: ReplicationMetrics): Reco
     columns.availability = round(w.realism.availability);
     columns.breakdownsPerHour = round(w.realism.failuresPerHour);
   }
+  if (summary.waitingBehindFixedFraction) columns.waitingBehindFixedFraction = round(w.realism.waitingBehindFixedFraction);
   return columns;
 }

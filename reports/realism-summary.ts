@@ -92,6 +92,8 @@ export interface HourlySummary {
 
 export interface RealismSummary {
   robotTime: { charging?: Interval; broken?: Interval };
+  /** With a battery or breakdowns: share of robot time standing blocked behind robots broken down or charging (part of robotTime.waiting). */
+  waitingBehindFixedFraction?: Interval;
   availability?: Interval;
   charging?: ChargingSummary;
   breakdowns?: BreakdownSummary;
@@ -120,6 +122,7 @@ export function summarizeRealism(
     },
   };
   if (battery) result.robotTime.charging = interval('robotTime.charging', (w) => w.robotTime.charging, 'fraction');
+  if (battery || breakdowns) result.waitingBehindFixedFraction = interval('waitingBehindFixedFraction', (w) => w.realism.waitingBehindFixedFraction, 'fraction');
   if (breakdowns) {
     result.robotTime.broken = interval('robotTime.broken', (w) => w.robotTime.broken, 'fraction');
     result.availability = interval('availability', (w) => w.realism.availability, 'fraction');

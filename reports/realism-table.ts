@@ -14,6 +14,8 @@ export function realismRows(summary: RunSummary, row: Row): string[][] {
   const rows: string[][] = [];
   if (summary.robotTime.charging) rows.push(row('robot time: charging (to, queued, on charger)', summary.robotTime.charging, 'percent'));
   if (summary.robotTime.broken) rows.push(row('robot time: broken down', summary.robotTime.broken, 'percent'));
+  // Part of "waiting/blocked": robots in a line that ends only at a broken-down or charging robot.
+  if (summary.waitingBehindFixedFraction) rows.push(row('robot time: blocked by broken/charging', summary.waitingBehindFixedFraction, 'percent'));
   if (summary.availability) rows.push(row('availability (not broken down)', summary.availability, 'percent'));
   if (summary.charging) {
     rows.push(row('charger utilisation', summary.charging.chargerUtilisation, 'percent'));

@@ -10,6 +10,8 @@ export interface RealismWindow {
   /** Robot-ticks at, going to or queued for a charger, and broken down (robot-ticks, for the robot-time split). */
   chargingRobotTicks: number;
   brokenRobotTicks: number;
+  /** Share of robot time standing blocked behind robots broken down or charging (0 without upkeep). */
+  waitingBehindFixedFraction: number;
   /** Share of robot time not broken down (1 without breakdowns). */
   availability: number;
   /** Share of charger time with a robot charging, over all chargers, and per charger. */
@@ -41,13 +43,14 @@ export function realismWindow(record: ReplicationRecord, from: number, to: numbe
 
   const upkeep = record.upkeep;
   if (upkeep === null) {
-    return { chargingRobotTicks: 0, brokenRobotTicks: 0, availability: 1, chargerUtilisation: NaN, chargerUtilisationByCharger: [], chargeQueueRobots: NaN, chargesPerHour: NaN, failuresPerHour: NaN, ranFlat: 0, leadParts };
+    return { chargingRobotTicks: 0, brokenRobotTicks: 0, waitingBehindFixedFraction: 0, availability: 1, chargerUtilisation: NaN, chargerUtilisationByCharger: [], chargeQueueRobots: NaN, chargesPerHour: NaN, failuresPerHour: NaN, ranFlat: 0, leadParts };
   }
   const m = upkeep.metrics;
   const chargers = m.chargerCount;
   let charging = 0;
   let broken = 0;
   let queued = 0;
+  let behindFixed = 0;
   let charges = 0;
   let failures = 0;
   let ranFlat = 0;
@@ -56,6 +59,7 @@ export function realismWindow(record: ReplicationRecord, from: number, to: numbe
     charging += m.chargingRobotTicks[i];
     broken += m.brokenRobotTicks[i];
     queued += m.queuedRobotTicks[i];
+    behindFixed += m.behindFixedRobotTicks[i];
     charges += m.chargesStarted[i];
     failures += m.failures[i];
     ranFlat += m.ranFlat[i];
@@ -66,6 +70,7 @@ export function realismWindow(record: ReplicationRecord, from: number, to: numbe
   return {
     chargingRobotTicks: charging,
     brokenRobotTicks: broken,
+    waitingBehindFixedFraction: robotTicks > 0 ? behindFixed / robotTicks : NaN,
     availability: robotTicks > 0 ? 1 - broken / robotTicks : NaN,
     chargerUtilisation: chargers > 0 && ticks > 0 ? busy.reduce((s, b) => s + b, 0) / (chargers * ticks) : NaN,
     chargerUtilisationByCharger: byCharger,

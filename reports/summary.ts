@@ -96,6 +96,11 @@ export interface RunSummary {
   stability: StabilitySummary;
   /** `charging` with a battery (at, going to or waiting for a charger), `broken` with breakdowns. */
   robotTime: { loaded: Interval; empty: Interval; handling: Interval; waiting: Interval; parked: Interval; charging?: Interval; broken?: Interval };
+  /**
+   * With a battery or breakdowns: share of robot time standing blocked in a line that ends
+   * only at robots broken down or charging on a charger (part of robotTime.waiting).
+   */
+  waitingBehindFixedFraction?: Interval;
   /** With breakdowns: share of robot time not broken down. */
   availability?: Interval;
   /** With a battery. */
@@ -368,6 +373,7 @@ export function summarize(
       parked: interval('robotTime.parked', (w) => w.robotTime.parked, 'fraction'),
       ...realism.robotTime,
     },
+    ...(realism.waitingBehindFixedFraction ? { waitingBehindFixedFraction: realism.waitingBehindFixedFraction } : {}),
     ...(realism.availability ? { availability: realism.availability } : {}),
     ...(realism.charging ? { charging: realism.charging } : {}),
     ...(realism.breakdowns ? { breakdowns: realism.breakdowns } : {}),

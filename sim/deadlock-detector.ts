@@ -44,6 +44,12 @@
  * or are cleared; idle members lose nothing (they had no work). For a gridlock, its
  * members' ticks from the fleet's stall to its end.
  *
+ * Behind robots fixed for long: with charging or breakdowns (`onBehindFixed` set), blocked
+ * robots that reach sinks only through robots broken down or charging on a charger (every
+ * way on ends at such a robot) are counted: a line behind a robot that stands for minutes,
+ * which is neither a station's queue nor a deadlock, and would otherwise be unexplained
+ * waiting.
+ *
  * Cost: O(robots) per evaluated tick (up to four neighbour checks per standing robot, a
  * reverse breadth-first pass over the wait edges only when some robot is blocked), typed
  * arrays sized once. Distances come from compact per-goal fields, never a full table per
@@ -58,6 +64,7 @@ import { Phase, isHandling, type World } from './world.ts';
 
 // Read once: imported bindings are getters under the TypeScript loader, and these are read per robot per step.
 const phaseIdle = Phase.Idle;
+const phaseCharging = Phase.Charging;
 const handlingPhase = isHandling;
 
 /** What each robot did over the evaluated step. */
@@ -133,6 +140,13 @@ export class DeadlockDetector {
   private members = 0;
   private gridlockSince = -1;
   private gridlockEpisode = -1;
+  /**
+   * Receives the number of blocked robots whose every way on ends at a robot fixed for long
+   * (broken down, charging) whenever it may have changed; null: not counted (no upkeep).
+   */
+  onBehindFixed: ((tick: number, robots: number) => void) | null = null;
+  private behindFixedNow = 0;
+  private reachedElse = new Uint8Array(0);
 
   constructor(
     private readonly layout: Layout,
@@ -402,6 +416,8 @@ export class DeadlockDetector {
     this.touchedSpare = this.touchedStations;
     this.touchedStations = touched;
 
+    if (this.onBehindFixed !== null) this.countBehindFixed(tick, world);
+
     // Stuck robots: blocked and reaching no sink.
     let stuckCount = 0;
     for (let r = 0; r < robots; r++) {
@@ -415,8 +431,55 @@ export class DeadlockDetector {
     this.stuckCount = stuckCount;
   }
 
+  /**
+   * Blocked robots that reach a sink (`reached`) but none through a sink other than a robot
+   * fixed for long: a search back from the other sinks marks who can go on without them.
+   */
+  private countBehindFixed(tick: number, world: World): void {
+    const robots = this.robots;
+    const status = this.status;
+    const longFixed = (r: number) => world.robotBroken[r] === 1 || world.robotPhase[r] === phaseCharging;
+    let any = false;
+    for (let r = 0; r < robots && !any; r++) if (status[r] === WaitStatus.Handling && longFixed(r)) any = true;
+    let count = 0;
+    if (any) {
+      if (this.reachedElse.length < robots) this.reachedElse = new Uint8Array(robots);
+      const other = this.reachedElse;
+      other.fill(0, 0, robots);
+      const queue = this.bfs;
+      let head = 0;
+      let tail = 0;
+      for (let r = 0; r < robots; r++) {
+        const s = status[r];
+        if ((s === WaitStatus.Handling && !longFixed(r)) || s === WaitStatus.Moving || s === WaitStatus.Free) {
+          other[r] = 1;
+          queue[tail++] = r;
+        }
+      }
+      const start = this.predecessorStart;
+      while (head < tail) {
+        const x = queue[head++];
+        for (let i = start[x]; i < start[x + 1]; i++) {
+          const p = this.predecessors[i];
+          if (other[p] || status[p] !== WaitStatus.Blocked) continue;
+          other[p] = 1;
+          queue[tail++] = p;
+        }
+      }
+      for (let r = 0; r < robots; r++) if (status[r] === WaitStatus.Blocked && this.reached[r] && !other[r]) count++;
+    }
+    if (count !== this.behindFixedNow) {
+      this.behindFixedNow = count;
+      this.onBehindFixed!(tick, count);
+    }
+  }
+
   /** Nobody is blocked: no queue, nobody stuck. */
   private noneBlocked(tick: number): void {
+    if (this.behindFixedNow !== 0) {
+      this.behindFixedNow = 0;
+      this.onBehindFixed?.(tick, 0);
+    }
     for (const s of this.touchedStations) {
       this.queuedNow[s] = 0;
       this.onQueue(s, tick, 0);

@@ -533,6 +533,8 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
       })
     : null;
   const upkeepCategory = upkeep?.category ?? null;
+  // Robots standing behind broken-down or charging robots: counted only when there can be any.
+  if (upkeep !== null) detector.onBehindFixed = (t, n) => upkeep.metrics.behindFixedSet(t, n);
   const moves = new Int32Array(robots);
   const turns = new Int8Array(robots).fill(-1);
   /** Tick at which each robot last drew whether its move is held back (one draw per robot per tick). */

@@ -16,6 +16,7 @@ export interface RecordedUpkeepMetrics {
   chargingRobotTicks: Float64Array;
   brokenRobotTicks: Float64Array;
   queuedRobotTicks: Float64Array;
+  behindFixedRobotTicks: Float64Array;
   chargerBusyTicks: Float64Array;
   chargesStarted: Float64Array;
   failures: Float64Array;
@@ -29,6 +30,11 @@ export class UpkeepMetrics {
   readonly chargingRobotTicks: Float64Array;
   readonly brokenRobotTicks: Float64Array;
   readonly queuedRobotTicks: Float64Array;
+  /**
+   * Robot-ticks of robots standing blocked in a wait-for chain that ends only at robots fixed
+   * for long (broken down, or charging on a charger): the deadlock detector's count.
+   */
+  readonly behindFixedRobotTicks: Float64Array;
   /** interval * chargerCount + charger: ticks a robot charged on it. */
   readonly chargerBusyTicks: Float64Array;
   readonly chargesStarted: Float64Array;
@@ -42,6 +48,7 @@ export class UpkeepMetrics {
   private charging = 0;
   private broken = 0;
   private queued = 0;
+  private behindFixed = 0;
   private since = 0;
   private readonly chargerOn: Uint8Array;
   private readonly chargerSince: Int32Array;
@@ -56,6 +63,7 @@ export class UpkeepMetrics {
     this.chargingRobotTicks = new Float64Array(n);
     this.brokenRobotTicks = new Float64Array(n);
     this.queuedRobotTicks = new Float64Array(n);
+    this.behindFixedRobotTicks = new Float64Array(n);
     this.chargerBusyTicks = new Float64Array(n * chargerCount);
     this.chargesStarted = new Float64Array(n);
     this.failures = new Float64Array(n);
@@ -89,6 +97,13 @@ export class UpkeepMetrics {
     this.broken += broken;
   }
 
+  /** Robots blocked only behind robots fixed for long, from `tick` on. */
+  behindFixedSet(tick: number, robots: number): void {
+    if (robots === this.behindFixed) return;
+    this.flush(tick);
+    this.behindFixed = robots;
+  }
+
   chargerChange(charger: number, tick: number, busy: boolean): void {
     if (this.chargerOn[charger]) this.spread(this.chargerBusyTicks, this.chargerCount, charger, this.chargerSince[charger], tick, 1);
     this.chargerOn[charger] = busy ? 1 : 0;
@@ -108,6 +123,7 @@ export class UpkeepMetrics {
     this.spread(this.chargingRobotTicks, 1, 0, this.since, tick, this.charging);
     this.spread(this.queuedRobotTicks, 1, 0, this.since, tick, this.queued);
     this.spread(this.brokenRobotTicks, 1, 0, this.since, tick, this.broken);
+    this.spread(this.behindFixedRobotTicks, 1, 0, this.since, tick, this.behindFixed);
     this.since = tick;
   }
 
@@ -119,7 +135,7 @@ export class UpkeepMetrics {
   }
 
   toRecorded(): RecordedUpkeepMetrics {
-    const { intervalTicks, intervalCount, chargerCount, chargingRobotTicks, brokenRobotTicks, queuedRobotTicks, chargerBusyTicks, chargesStarted, failures, ranFlat, deferredFailures, deferredTicks } = this;
-    return { intervalTicks, intervalCount, chargerCount, chargingRobotTicks, brokenRobotTicks, queuedRobotTicks, chargerBusyTicks, chargesStarted, failures, ranFlat, deferredFailures, deferredTicks };
+    const { intervalTicks, intervalCount, chargerCount, chargingRobotTicks, brokenRobotTicks, queuedRobotTicks, behindFixedRobotTicks, chargerBusyTicks, chargesStarted, failures, ranFlat, deferredFailures, deferredTicks } = this;
+    return { intervalTicks, intervalCount, chargerCount, chargingRobotTicks, brokenRobotTicks, queuedRobotTicks, behindFixedRobotTicks, chargerBusyTicks, chargesStarted, failures, ranFlat, deferredFailures, deferredTicks };
   }
 }

@@ -97,14 +97,15 @@ describe('the new fields absent, or present but never acting, change nothing', (
     expect(acted.status, acted.stderr).toBe(0);
     const before = parsedWithoutTiming(plain.stdout);
     const after = parsedWithoutTiming(acted.stdout);
-    for (const key of ['availability', 'charging', 'breakdowns', 'hourly']) expect(key in before).toBe(false);
+    for (const key of ['availability', 'charging', 'breakdowns', 'hourly', 'waitingBehindFixedFraction']) expect(key in before).toBe(false);
     expect('charging' in (before.robotTime as object)).toBe(false);
     expect('leadTimeSplit' in before).toBe(true);
     // What the inert run adds, and nothing else.
     expect((after.charging as { ranFlat: number }).ranFlat).toBe(0);
     expect((after.robotTime as { charging: { mean: number } }).charging.mean).toBe(0);
     expect((after.breakdowns as { failuresPerHour: { mean: number } }).failuresPerHour.mean).toBe(0);
-    for (const key of ['availability', 'charging', 'breakdowns']) delete after[key];
+    expect((after.waitingBehindFixedFraction as { mean: number }).mean).toBe(0);
+    for (const key of ['availability', 'charging', 'breakdowns', 'waitingBehindFixedFraction']) delete after[key];
     delete (after.robotTime as Record<string, unknown>).charging;
     delete (after.robotTime as Record<string, unknown>).broken;
     expect(JSON.stringify(after, null, 2)).toBe(JSON.stringify(before, null, 2));

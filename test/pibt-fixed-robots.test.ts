@@ -13,6 +13,7 @@ import { runReplication, type ReplicationRecord } from '../sim/engine.ts';
 import type { Scenario, TraceTask } from '../sim/model.ts';
 import { Phase } from '../sim/world.ts';
 import { makeScenario } from './helpers.ts';
+import { summarize } from '../reports/summary.ts';
 
 // A ring: the short way from P (1:1) to D (7:1) runs along row 1 (6 cells); the long way goes
 // down column 1, along row 3 and up column 7: 2 + 6 + 2 = 10 cells.
@@ -122,6 +123,54 @@ describe('pibt: a robot charging on a charger in the aisle', () => {
     const byHand = (chargeEnd - chargeStart) / 27;
     expect(Math.abs(inWindow - byHand)).toBeLessThanOrEqual(1.5);
     expect(record.policyCounters.detourSwitches).toBeGreaterThan(0);
+  });
+});
+
+describe('the summary names waiting behind a broken-down robot', () => {
+  // One aisle, no way round: D (1:1), parking H 3:1 (robot 0) and 5:1 (robot 1), P (7:1).
+  const layout = ['#########', '#D.H.H.P#', '#########'].join('\n');
+  const tasks: TraceTask[] = [{ releaseSeconds: 0, pickup: cell(7, 1), drop: cell(1, 1) }];
+  const scenario: Scenario = {
+    ...makeScenario({
+      layout,
+      robots: 2,
+      policy: 'pibt',
+      pickupSeconds: 4,
+      dropSeconds: 3,
+      hours: 1,
+      warmup: 0,
+      recoverySeconds: 0,
+      demand: { kind: 'trace', mode: 'delivery', tracePath: 'inline', tasks },
+    }),
+    // Breakdowns configured (so the upkeep records) but none falls due within the hour.
+    faults: { breakdowns: { timeToFailure: { dist: 'fixed', seconds: 1e7 }, repair: { dist: 'fixed', seconds: 60 } } },
+  };
+
+  it('as a share of robot time, counted by hand from the drawing', () => {
+    const record = runReplication(prepareSetup(scenario), 0, {
+      afterMotion: (_tick, world) => {
+        if (world.robotBroken[0] === 0) {
+          world.robotBroken[0] = 1;
+          world.version++;
+        }
+      },
+    });
+    const { summary } = summarize(scenario, [record], 0);
+    // Robot 1 (nearer P: 2 cells against 4) takes the task: on P at 2 s, loads to 6 s,
+    // drives west to 4:1 by 9 s and stands there behind the broken robot on 3:1 until the end:
+    // 3600 - 9 = 3591 of the 2 x 3600 robot-seconds. No detour exists, so that is all waiting,
+    // and all of it behind a broken-down robot, not a deadlock.
+    const byHand = 3591 / 7200;
+    expect(record.delivered).toBe(0);
+    expect(summary.robotTime.waiting.mean).toBeCloseTo(byHand, 3);
+    expect(summary.waitingBehindFixedFraction!.mean).toBeCloseTo(byHand, 3);
+    expect(summary.deadlocks.mean).toBe(0);
+  });
+
+  it('is absent without a battery or breakdowns', () => {
+    const plain = { ...scenario, faults: undefined };
+    const record = runReplication(prepareSetup(plain), 0);
+    expect(summarize(plain, [record], 0).summary.waitingBehindFixedFraction).toBeUndefined();
   });
 });
 
