@@ -62,7 +62,8 @@
  * (dispatch.ts). Measured on the demo shift hall (24 robots, 900 tasks/h, breakdowns MTBF
  * 8 h / MTTR 20 min, battery and chargers, two slow inducts; 3 x 4 h): 658 ± 371 tasks/h,
  * unstable, with up to 22 of 24 robots standing in lines either side of one broken robot,
- * became 912 ± 2/h, stable (token passing 906 ± 23/h); breakdowns alone 756 ± 189 -> 912 ± 1.
+ * became 909 ± 14/h, stable, lead time 69 s (token passing 906 ± 23/h, 115 s); breakdowns
+ * alone 756 ± 189 -> 913 ± 0.
  * Without breakdowns or charging nothing is closed and every choice is as before.
  *
  * PIBT is complete for the highest-priority robot only on graphs where every two
