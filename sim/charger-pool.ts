@@ -3,7 +3,8 @@
  * first-served queue (a multi-server queue, Kleinrock, Queueing Systems vol. 1, ch. 3): a
  * charger serves one robot at a time; a robot that needs a charge takes the free charger
  * nearest to it (grid distance, ties in reading order) or joins the queue; when a robot
- * finishes charging, its charger goes to the robot at the head of the queue.
+ * finishes charging, its charger goes to the robot at the head of the queue. A charger a
+ * broken-down robot stands on is not free (the robot cannot leave it before its repair).
  *
  * The pool only keeps claims; the engine moves robots and runs the clock.
  */
@@ -26,12 +27,12 @@ export class ChargerPool {
    * Robot r asks for a charger; `distanceTo(cell)` is its grid distance to a cell. Returns
    * the charger cell it may drive to, or -1 when it joins the queue.
    */
-  request(robot: number, distanceTo: (cell: number) => number): number {
+  request(robot: number, distanceTo: (cell: number) => number, blocked?: (cell: number) => boolean): number {
     if (this.heldBy[robot] >= 0) return this.chargers[this.heldBy[robot]];
     let best = -1;
     let bestDistance = Infinity;
     for (let i = 0; i < this.chargers.length; i++) {
-      if (this.holder[i] >= 0) continue;
+      if (this.holder[i] >= 0 || blocked?.(this.chargers[i])) continue;
       const d = distanceTo(this.chargers[i]);
       if (d < bestDistance) {
         bestDistance = d;
@@ -56,6 +57,20 @@ export class ChargerPool {
     if (index < 0) return -1;
     this.heldBy[robot] = -1;
     this.holder[index] = -1;
+    const next = this.waiting.shift();
+    if (next === undefined) return -1;
+    this.holder[index] = next;
+    this.heldBy[next] = index;
+    return next;
+  }
+
+  /**
+   * The free charger on `cell` (one nobody holds) goes to the head of the queue: used when a
+   * robot broken down on a free charger is repaired and leaves it. Returns that robot or -1.
+   */
+  offer(cell: number): number {
+    const index = this.chargers.indexOf(cell);
+    if (index < 0 || this.holder[index] >= 0) return -1;
     const next = this.waiting.shift();
     if (next === undefined) return -1;
     this.holder[index] = next;

@@ -70,6 +70,8 @@ export class Upkeep {
   private readonly repairAt: Float64Array;
   private readonly pendingSince: Float64Array;
   private readonly chargerIndex: Int32Array;
+  /** 1 while a robot that broke down during its charge keeps its charger until repaired. */
+  private readonly keepsCharger: Uint8Array;
   private needy = 0;
   private pending = 0;
 
@@ -101,6 +103,7 @@ export class Upkeep {
     this.failAt = new Float64Array(robots).fill(-1);
     this.repairAt = new Float64Array(robots).fill(-1);
     this.pendingSince = new Float64Array(robots);
+    this.keepsCharger = new Uint8Array(robots);
     this.chargerIndex = new Int32Array(layout.cellCount).fill(-1);
     layout.chargers.forEach((cell, i) => (this.chargerIndex[cell] = i));
   }
@@ -204,7 +207,13 @@ export class Upkeep {
     const world = this.world;
     const from = world.robotCell[robot];
     const table = this.distances.to(from);
-    const charger = this.pool!.request(robot, (cell) => table[cell]);
+    const occupant = world.occupant;
+    const broken = world.robotBroken;
+    const charger = this.pool!.request(
+      robot,
+      (cell) => table[cell],
+      (cell) => occupant[cell] >= 0 && occupant[cell] !== robot && broken[occupant[cell]] === 1,
+    );
     const before = this.category[robot];
     if (charger >= 0) {
       world.robotPhase[robot] = Phase.ToCharger;
@@ -229,15 +238,22 @@ export class Upkeep {
     this.setCategory(robot, tick, this.category[robot], 0);
     this.host.progressed(robot, tick);
     this.scheduleLow(robot, tick);
-    const next = this.pool!.release(robot);
-    if (next >= 0) {
-      const before = this.category[next];
-      world.robotPhase[next] = Phase.ToCharger;
-      world.robotCharger[next] = this.pool!.chargerOf(next);
-      this.setCategory(next, tick, before, -1);
-      this.host.progressed(next, tick);
-      if (world.robotCell[next] === world.robotCharger[next]) this.arrived(next, tick);
-    }
+    // A robot that broke down while charging still stands on its charger: the next robot in
+    // the queue gets it at the repair, not now (it would drive up to a robot that cannot move).
+    if (world.robotBroken[robot]) this.keepsCharger[robot] = 1;
+    else this.handOff(this.pool!.release(robot), tick);
+  }
+
+  /** Robot `next` (or -1: nobody) was given a charger: it drives there, or starts if on it. */
+  private handOff(next: number, tick: number): void {
+    if (next < 0) return;
+    const world = this.world;
+    const before = this.category[next];
+    world.robotPhase[next] = Phase.ToCharger;
+    world.robotCharger[next] = this.pool!.chargerOf(next);
+    this.setCategory(next, tick, before, -1);
+    this.host.progressed(next, tick);
+    if (world.robotCell[next] === world.robotCharger[next]) this.arrived(next, tick);
   }
 
   private breakDown(robot: number, tick: number): void {
@@ -266,6 +282,16 @@ export class Upkeep {
     this.setCategory(robot, tick, before, 0);
     this.host.progressed(robot, tick);
     this.scheduleFailure(robot, this.clock!.nextFailure(robot, tick));
+    if (this.pool) {
+      // The charger it stood on broken is usable again: kept through the repair (it broke
+      // down charging), or a free one it happened to stand on.
+      if (this.keepsCharger[robot]) {
+        this.keepsCharger[robot] = 0;
+        this.handOff(this.pool.release(robot), tick);
+      } else if (this.chargerIndex[world.robotCell[robot]] >= 0 && world.robotCharger[robot] < 0) {
+        this.handOff(this.pool.offer(world.robotCell[robot]), tick);
+      }
+    }
   }
 
   private scheduleLow(robot: number, tick: number): void {
