@@ -12,6 +12,7 @@
  *   npm run bench -- --quick      skip the slow rows (munkres-js at 1000, pibt at 1,000 and 10,000 robots, the replay viewer, memory)
  *   npm run bench -- --only NAME  only rows whose name starts with NAME (engine, policy, pibt, replay, search, assignment, memory, sweep, size)
  *   npm run bench -- --robots N   engine and policy rows: only the rows with N robots
+ *   npm run bench -- --policy P   policy rows: only policy P's rows
  *
  * `npm run bench` starts bench/start.js, which runs this file compiled (build/build.js) when
  * the build is current, else through tsx; every row says which in `loader`.
@@ -31,6 +32,8 @@ const wanted = (name: string) => only === null || name.startsWith(only);
 const robotsIndex = args.indexOf('--robots');
 const onlyRobots = robotsIndex >= 0 ? Number(args[robotsIndex + 1]) : null;
 const fleetWanted = (robots: number) => onlyRobots === null || robots === onlyRobots;
+const policyIndex = args.indexOf('--policy');
+const onlyPolicy = policyIndex >= 0 ? args[policyIndex + 1] : null;
 
 type Row = Record<string, string | number | boolean | null>;
 const rows: Row[] = [];
@@ -41,7 +44,9 @@ const log = (text: string) => {
 
 function measure(name: string, scenario: Scenario): Row {
   const setup = prepareSetup(scenario);
+  const cpu = process.cpuUsage();
   const record = runReplication(setup, 0);
+  const cpuUsed = process.cpuUsage(cpu);
   const row: Row = {
     name,
     policy: scenario.policy.name,
@@ -49,6 +54,9 @@ function measure(name: string, scenario: Scenario): Row {
     simulatedHours: scenario.run.hours,
     agentSteps: record.agentSteps,
     wallSeconds: Number(record.timing.wallSeconds.toFixed(3)),
+    // CPU seconds of this process over the run: on a shared machine wall time grows with
+    // other processes' load, CPU time much less.
+    cpuSeconds: Number(((cpuUsed.user + cpuUsed.system) / 1e6).toFixed(3)),
     agentStepsPerSecond: Math.round(record.agentSteps / record.timing.wallSeconds),
     planningShare: Number((record.timing.planningSeconds / record.timing.wallSeconds).toFixed(3)),
     realTimeFactor: Math.round((scenario.run.hours * 3600) / record.timing.wallSeconds),
@@ -78,6 +86,7 @@ async function main(): Promise<void> {
   }
   if (wanted('policy')) {
     for (const factory of policies) {
+      if (onlyPolicy !== null && factory.name !== onlyPolicy) continue;
       for (const robots of [40, 100, 200]) {
         if (!fleetWanted(robots)) continue;
         // The demo hall has 38 parking spots: robots beyond them start on rest cells, where

@@ -139,6 +139,11 @@ export class SpaceTimeAStar {
   private heuristic: Int32Array = new Int32Array(0);
   /** Heading at the goal after the last successful search (the last move's, or the start heading). */
   lastHeading = 0;
+  /** Try the free path down the distance table before searching (same result either way; off only to test that). */
+  freePathFirst = true;
+  /** Searches answered by the free path down the distance table (`freeGradientPath`), without expanding a state. */
+  gradientPaths = 0;
+  private gradientBuffer = new Int32Array(64);
   /** Searches that the reachability pass ended. */
   unreachableSkips = 0;
   /** Breadth-first labelling passes run for the reachability check. */
@@ -201,6 +206,15 @@ export class SpaceTimeAStar {
     this.heapSize = 0;
     this.intervalsUsed = 0;
     if (!this.goalWindows(goal, startTick + 1, holdTicks, restForever)) return null;
+    if (this.freePathFirst && headings === 1 && readyTick === startTick) {
+      const free = this.freeGradientPath(start);
+      if (free !== null) {
+        // As the search below would have done on passing the reachability pre-check.
+        this.unreachableRate *= 15 / 16;
+        this.gradientPaths++;
+        return free;
+      }
+    }
     // With usable labels the reachability check is free: do it now. Otherwise, while many
     // recent searches were unreachable (a crowded floor, robots boxed in by resting ones), a
     // breadth-first pass from the start settles it at once, as cheap as the boxed-in region
@@ -330,6 +344,61 @@ export class SpaceTimeAStar {
       this.intervalBest[best] = arrival;
       this.push(n, i, heading, arrival, node);
     }
+  }
+
+  /**
+   * The path the search below returns when its first choices all work out, found without
+   * the search: from the start, step by step to the first neighbour (in neighbour order)
+   * one closer to the goal by the distance table that is free at the next tick and no swap,
+   * arriving at the goal at startTick + its distance inside an arrival window; null as soon
+   * as a step has no such neighbour (then the search runs as always).
+   *
+   * Why this is the search's own answer, not just an equally good one: when the goal is
+   * ready at startTick + dist, f = dist is the least key, and the states with f = dist are
+   * exactly those one step closer and one tick later than a state with f = dist (h drops by
+   * at most 1 per move, arrival grows by at least 1). Among equal f the heap key prefers the
+   * deeper state, and among children of one expansion with the same key the first pushed
+   * (lowest neighbour index) reaches the root first (a push moves up past strictly larger
+   * keys only), so each pop takes the previous pop's first such child, until the goal. The
+   * cells on the way have strictly falling distances, so none was touched before; no
+   * expansion limit or lazy reachability check can intervene within dist expansions (the
+   * check waits for more than dist + 16). The vertex test (`isFree` at t + 1) and the swap
+   * test are the ones `generate` applies through the safe intervals; the table is read
+   * directly, so no interval is copied and no search state is written.
+   */
+  private freeGradientPath(start: number): Int32Array | null {
+    const heuristic = this.heuristic;
+    const dist = heuristic[start];
+    const startTick = this.startTick;
+    const arrival = startTick + dist;
+    if (arrival > this.lastTick || dist > this.maxExpansions || this.ready(arrival) !== arrival) return null;
+    if (this.gradientBuffer.length <= dist) this.gradientBuffer = new Int32Array(2 * (dist + 1));
+    const buffer = this.gradientBuffer;
+    const table = this.table;
+    const neighbors = this.layout.neighbors;
+    const goal = this.goal;
+    const robot = this.robot;
+    buffer[0] = start;
+    let cell = start;
+    for (let step = 1; step <= dist; step++) {
+      const tick = startTick + step - 1;
+      const closer = dist - step;
+      const base = cell * 4;
+      let next = -1;
+      for (let d = 0; d < 4; d++) {
+        const n = neighbors[base + d];
+        if (n < 0 || heuristic[n] !== closer) continue;
+        // The goal: the arrival window holds (ready(arrival) === arrival, checked above); other cells: free at tick + 1.
+        if (n !== goal && !table.isFree(n, tick + 1, robot)) continue;
+        if (table.swaps(cell, n, tick, robot)) continue;
+        next = n;
+        break;
+      }
+      if (next < 0) return null;
+      buffer[step] = next;
+      cell = next;
+    }
+    return buffer.slice(0, dist + 1);
   }
 
   /** Arrival windows at the goal from tick `from` on; false when there is none. */
