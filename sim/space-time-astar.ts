@@ -121,6 +121,8 @@ export class SpaceTimeAStar {
   private readonly labelQueue: Int32Array;
   private readonly labelRest: Int32Array;
   private labelsBuilt = false;
+  /** The labels before a pass: -2 (unlabelled) on floor cells, -1 elsewhere. */
+  private labelTemplate: Int32Array | null = null;
   private labelRestRevision = -1;
   private labelTick = -1;
   private labelCheckedExcept = -1;
@@ -268,7 +270,10 @@ export class SpaceTimeAStar {
       if (!checked && expanded > lazyAfter) {
         checked = true;
         // Labels built for this very table and tick are as precise as they get.
-        if (this.labelBuiltRevision !== table.restRevision || this.labelBuiltTick !== startTick) this.buildLabels(startTick);
+        if (this.labelBuiltRevision !== table.restRevision || this.labelBuiltTick !== startTick) {
+          if (this.labelsExact(startTick)) this.markLabelsBuilt(startTick);
+          else this.buildLabels(startTick);
+        }
         if (this.labelsCurrent(startTick, start) && !this.reachable(start, goal)) {
           this.unreachableRate += 1 / 16;
           this.unreachableSkips++;
@@ -433,6 +438,8 @@ export class SpaceTimeAStar {
   private ready(k: number): number {
     const lo = this.windowLo;
     const hi = this.windowHi;
+    // Most goals have one window (free from some tick on): no search needed.
+    if (this.windows === 1) return hi[0] < k ? never : Math.max(k, lo[0]);
     let a = 0;
     let b = this.windows;
     while (a < b) {
@@ -451,8 +458,9 @@ export class SpaceTimeAStar {
     if (needed > this.intervalLo.length) this.growIntervals(needed);
     const at = this.intervalsUsed;
     const count = table.safeIntervals(cell, this.startTick + 1, this.robot, this.intervalLo, this.intervalHi, at);
-    const headings = this.headings;
-    this.intervalBest.fill(never, at * headings, (at + count) * headings);
+    // A loop, not fill(): a cell has one or two intervals, and fill's call costs more than that.
+    const best = this.intervalBest;
+    for (let i = at * this.headings, end = (at + count) * this.headings; i < end; i++) best[i] = never;
     this.intervalsUsed += count;
     this.cellStamp[cell] = this.searchId;
     this.cellFirst[cell] = at;
@@ -578,9 +586,12 @@ export class SpaceTimeAStar {
     const neighbors = this.layout.neighbors;
     const queue = this.labelQueue;
     this.reachabilityPasses++;
-    label.fill(-1);
     const unlabelled = -2;
-    for (let c = 0; c < label.length; c++) if (passable[c]) label[c] = unlabelled;
+    if (this.labelTemplate === null) {
+      this.labelTemplate = new Int32Array(label.length).fill(-1);
+      for (let c = 0; c < label.length; c++) if (passable[c]) this.labelTemplate[c] = unlabelled;
+    }
+    label.set(this.labelTemplate);
     for (let r = 0; r < table.robots; r++) {
       // The searching robot's own rest never blocks it.
       const cell = r === this.robot ? -1 : this.blockingRest(r, tick);
@@ -607,6 +618,25 @@ export class SpaceTimeAStar {
       }
       parts++;
     }
+    this.markLabelsBuilt(tick);
+  }
+
+  /**
+   * True when labels built now for this robot would block exactly the cells they block
+   * already (the same resting robots on the same cells): then they are the labels a new
+   * pass would give, without the O(cells) pass.
+   */
+  private labelsExact(tick: number): boolean {
+    if (!this.labelsBuilt) return false;
+    const self = this.robot;
+    const rests = this.labelRest;
+    for (let r = 0; r < this.table.robots; r++) if (rests[r] !== (r === self ? -1 : this.blockingRest(r, tick))) return false;
+    return true;
+  }
+
+  /** Records that the labels are those of the table's current revision at `tick`. */
+  private markLabelsBuilt(tick: number): void {
+    const table = this.table;
     this.labelsBuilt = true;
     this.labelBuiltRevision = table.restRevision;
     this.labelBuiltTick = tick;
