@@ -8,10 +8,14 @@
  * `from`, as safe-interval path planning reads them (Phillips & Likhachev, "SIPP: Safe
  * Interval Path Planning for Dynamic Environments", ICRA 2011): a path is written as one
  * interval per run of ticks on one cell (a robot waiting or handling for 20 ticks costs one
- * entry, not 20). The lists live in one pool of parallel typed arrays (from, to, robot,
- * next) with a free list; intervals that ended before the current tick are dropped whenever
- * their cell's list is written, so memory follows the live reservations (about 16 bytes per
- * run of a live path), not horizon x cells.
+ * entry, not 20). Each cell's list is one contiguous block of a shared pool of parallel
+ * typed arrays (from, to, robot), found by a per-cell start index and capacity, so the
+ * searches' reads (safe intervals, holder, swap tests) walk consecutive slots instead of
+ * chasing links; a block that fills moves to the end of the pool at twice its capacity,
+ * and the pool is repacked when it runs out. Intervals that ended before the current tick
+ * are dropped whenever their cell's list is written, so memory follows the live
+ * reservations (about 12 bytes per run of a live path, plus block slack), not horizon x
+ * cells.
  *
  * `horizon` is the longest path, in ticks from its start, that a search may return; callers
  * raise it with `ensureHorizon` before planning long paths (it costs no memory).
@@ -42,15 +46,17 @@ export class ReservationTable {
   /** The latest current tick seen; path entries before it are history and never written. */
   private now = 0;
 
-  // Interval pool: entry i covers ticks [from[i], to[i]] for robot[i]; next[i] links a cell's list.
-  private head: Int32Array;
+  // Interval pool: entry i covers ticks [from[i], to[i]] for robot[i]; a cell's list is
+  // entries cellStart[c] .. cellStart[c] + listLength[c] - 1, in `from` order (ties in
+  // insertion order), in a block of cellCapacity[c] slots.
+  private readonly cellStart: Int32Array;
+  private readonly cellCapacity: Int32Array;
   /** Entries in each cell's list (an upper bound on its safe intervals minus one). */
   readonly listLength: Int32Array;
   private from = new Int32Array(1024);
   private to = new Int32Array(1024);
   private robot = new Int32Array(1024);
-  private next = new Int32Array(1024);
-  private freeHead = none;
+  /** Slots of the pool handed out to blocks (live or left behind by a move). */
   private used = 0;
 
   constructor(
@@ -59,7 +65,8 @@ export class ReservationTable {
     horizon = 256,
   ) {
     this.horizon = nextPowerOfTwo(horizon);
-    this.head = new Int32Array(cells).fill(none);
+    this.cellStart = new Int32Array(cells);
+    this.cellCapacity = new Int32Array(cells);
     this.listLength = new Int32Array(cells);
     this.endRobot = new Int32Array(cells).fill(none);
     this.endFrom = new Int32Array(cells);
@@ -70,7 +77,7 @@ export class ReservationTable {
 
   /** True when `cell` at `tick` is held by no robot other than `self`. */
   isFree(cell: number, tick: number, self: number): boolean {
-    for (let e = this.head[cell]; e !== none; e = this.next[e]) {
+    for (let e = this.cellStart[cell], end = e + this.listLength[cell]; e < end; e++) {
       if (this.from[e] > tick) break;
       if (this.to[e] >= tick && this.robot[e] !== self) return false;
     }
@@ -80,7 +87,7 @@ export class ReservationTable {
 
   /** The robot holding `cell` at `tick` by a path or a rest, or -1. */
   holder(cell: number, tick: number): number {
-    for (let e = this.head[cell]; e !== none; e = this.next[e]) {
+    for (let e = this.cellStart[cell], end = e + this.listLength[cell]; e < end; e++) {
       if (this.from[e] > tick) break;
       if (this.to[e] >= tick) return this.robot[e];
     }
@@ -109,7 +116,7 @@ export class ReservationTable {
   isFreeFrom(cell: number, tick: number, self: number): boolean {
     const rester = this.endRobot[cell];
     if (rester >= 0 && rester !== self) return false;
-    for (let e = this.head[cell]; e !== none; e = this.next[e]) {
+    for (let e = this.cellStart[cell], end = e + this.listLength[cell]; e < end; e++) {
       if (this.to[e] >= tick && this.robot[e] !== self) return false;
     }
     return true;
@@ -117,7 +124,7 @@ export class ReservationTable {
 
   /** True when `cell` is free for `self` at every tick in [from, to]. */
   isFreeDuring(cell: number, from: number, to: number, self: number): boolean {
-    for (let e = this.head[cell]; e !== none; e = this.next[e]) {
+    for (let e = this.cellStart[cell], end = e + this.listLength[cell]; e < end; e++) {
       if (this.from[e] > to) break;
       if (this.to[e] >= from && this.robot[e] !== self) return false;
     }
@@ -136,7 +143,7 @@ export class ReservationTable {
     const limit = rester >= 0 && rester !== self ? this.endFrom[cell] : foreverTick + 1;
     let cursor = from;
     let count = 0;
-    for (let e = this.head[cell]; e !== none; e = this.next[e]) {
+    for (let e = this.cellStart[cell], end = e + this.listLength[cell]; e < end; e++) {
       const start = this.from[e];
       if (start >= limit) break;
       const end = this.to[e];
@@ -215,7 +222,7 @@ export class ReservationTable {
 
   /** Bytes held in typed arrays (for benchmarks). */
   memoryBytes(): number {
-    const arrays = [this.head, this.listLength, this.endRobot, this.endFrom, this.pathStart, this.writtenFrom, this.from, this.to, this.robot, this.next];
+    const arrays = [this.cellStart, this.cellCapacity, this.listLength, this.endRobot, this.endFrom, this.pathStart, this.writtenFrom, this.from, this.to, this.robot];
     let bytes = 0;
     for (const a of arrays) bytes += a.byteLength;
     for (const p of this.paths) if (p) bytes += p.byteLength;
@@ -241,25 +248,45 @@ export class ReservationTable {
 
   /** Inserts [from, to] for robot into the cell's list in `from` order, dropping entries that ended before now. */
   private insert(cell: number, from: number, to: number, robot: number): void {
-    const entry = this.allocate();
-    this.from[entry] = from;
-    this.to[entry] = to;
-    this.robot[entry] = robot;
-    let previous = none;
-    let e = this.head[cell];
-    while (e !== none && this.from[e] <= from) {
-      const following = this.next[e];
-      if (this.to[e] < this.now) {
-        this.unlink(cell, previous, e);
-      } else {
-        previous = e;
+    if (this.listLength[cell] === this.cellCapacity[cell]) this.move(cell);
+    const first = this.cellStart[cell];
+    const end = first + this.listLength[cell];
+    const froms = this.from;
+    const tos = this.to;
+    const robots = this.robot;
+    const now = this.now;
+    // Keep the entries up to the insertion point (after every entry starting no later) that
+    // have not ended, closing the gaps; stale entries all start before `from` (from >= now).
+    let write = first;
+    let e = first;
+    for (; e < end && froms[e] <= from; e++) {
+      if (tos[e] < now) continue;
+      if (write !== e) {
+        froms[write] = froms[e];
+        tos[write] = tos[e];
+        robots[write] = robots[e];
       }
-      e = following;
+      write++;
     }
-    this.next[entry] = e;
-    if (previous === none) this.head[cell] = entry;
-    else this.next[previous] = entry;
-    this.listLength[cell]++;
+    // The entries after the insertion point move to just behind the new one.
+    const shift = write + 1 - e;
+    if (shift > 0) {
+      for (let k = end - 1; k >= e; k--) {
+        froms[k + shift] = froms[k];
+        tos[k + shift] = tos[k];
+        robots[k + shift] = robots[k];
+      }
+    } else if (shift < 0) {
+      for (let k = e; k < end; k++) {
+        froms[k + shift] = froms[k];
+        tos[k + shift] = tos[k];
+        robots[k + shift] = robots[k];
+      }
+    }
+    froms[write] = from;
+    tos[write] = to;
+    robots[write] = robot;
+    this.listLength[cell] = end + shift - first;
   }
 
   /**
@@ -268,48 +295,68 @@ export class ReservationTable {
    * kept its past is not taken for it).
    */
   private cut(cell: number, robot: number, entryFrom: number, entryTo: number, from: number): void {
-    let previous = none;
-    for (let e = this.head[cell]; e !== none; e = this.next[e]) {
-      if (this.from[e] > entryFrom) return;
-      if (this.robot[e] === robot && this.to[e] === entryTo && this.from[e] === entryFrom) {
-        if (this.from[e] < from) {
-          if (this.to[e] >= from) this.to[e] = from - 1;
+    const first = this.cellStart[cell];
+    const end = first + this.listLength[cell];
+    const froms = this.from;
+    const tos = this.to;
+    const robots = this.robot;
+    for (let e = first; e < end; e++) {
+      if (froms[e] > entryFrom) return;
+      if (robots[e] === robot && tos[e] === entryTo && froms[e] === entryFrom) {
+        if (froms[e] < from) {
+          if (tos[e] >= from) tos[e] = from - 1;
         } else {
-          this.unlink(cell, previous, e);
+          for (let k = e + 1; k < end; k++) {
+            froms[k - 1] = froms[k];
+            tos[k - 1] = tos[k];
+            robots[k - 1] = robots[k];
+          }
+          this.listLength[cell]--;
         }
         return;
       }
-      previous = e;
     }
   }
 
-  private unlink(cell: number, previous: number, entry: number): void {
-    if (previous === none) this.head[cell] = this.next[entry];
-    else this.next[previous] = this.next[entry];
-    this.next[entry] = this.freeHead;
-    this.freeHead = entry;
-    this.listLength[cell]--;
+  /** Moves a full cell block to the end of the pool at twice its capacity (repacking the pool when it is used up). */
+  private move(cell: number): void {
+    const capacity = this.cellCapacity[cell] === 0 ? 4 : 2 * this.cellCapacity[cell];
+    if (this.used + capacity > this.from.length) this.repack(capacity);
+    const at = this.used;
+    const first = this.cellStart[cell];
+    const count = this.listLength[cell];
+    this.from.copyWithin(at, first, first + count);
+    this.to.copyWithin(at, first, first + count);
+    this.robot.copyWithin(at, first, first + count);
+    this.cellStart[cell] = at;
+    this.cellCapacity[cell] = capacity;
+    this.used += capacity;
   }
 
-  private allocate(): number {
-    if (this.freeHead !== none) {
-      const entry = this.freeHead;
-      this.freeHead = this.next[entry];
-      return entry;
+  /** Copies every cell's block into a fresh pool, leaving out the slots of moved blocks, with room for `extra` more. */
+  private repack(extra: number): void {
+    const cells = this.cells;
+    let live = extra;
+    for (let c = 0; c < cells; c++) live += this.cellCapacity[c];
+    let size = this.from.length;
+    while (size < 2 * live) size *= 2;
+    const from = new Int32Array(size);
+    const to = new Int32Array(size);
+    const robot = new Int32Array(size);
+    let at = 0;
+    for (let c = 0; c < cells; c++) {
+      const first = this.cellStart[c];
+      const count = this.listLength[c];
+      from.set(this.from.subarray(first, first + count), at);
+      to.set(this.to.subarray(first, first + count), at);
+      robot.set(this.robot.subarray(first, first + count), at);
+      this.cellStart[c] = at;
+      at += this.cellCapacity[c];
     }
-    if (this.used === this.from.length) {
-      const capacity = 2 * this.used;
-      const grow = (a: Int32Array) => {
-        const b = new Int32Array(capacity);
-        b.set(a);
-        return b;
-      };
-      this.from = grow(this.from);
-      this.to = grow(this.to);
-      this.robot = grow(this.robot);
-      this.next = grow(this.next);
-    }
-    return this.used++;
+    this.from = from;
+    this.to = to;
+    this.robot = robot;
+    this.used = at;
   }
 }
 

@@ -159,4 +159,26 @@ describe('ReservationTable against a naive model (property test, fast-check)', (
     expect(table.horizon).toBeGreaterThan(5000);
     expect(table.memoryBytes() - before).toBeLessThan(5000 * 4 + 1024);
   });
+
+  it('answers for every cell and tick when cell lists outgrow their blocks and the pool is repacked', () => {
+    // 32 robots on a ring of 64 cells, robot r at cell (2r + t) mod 64 at tick t: at most one
+    // robot per cell and tick, 100 runs per cell over 200 ticks (blocks move and the pool of
+    // 1,024 slots is repacked several times). Then the odd robots' paths are released from
+    // tick 50 on: their cells are free from then, their earlier ticks stay.
+    const cells = 64;
+    const robots = 32;
+    const table = new ReservationTable(cells, robots, 256);
+    const ringPath = (r: number) => Int32Array.from({ length: 200 }, (_, k) => (2 * r + k) % cells);
+    for (let r = 0; r < robots; r++) table.reserve(r, ringPath(r), 0, 0);
+    const expectedHolder = (cell: number, tick: number, released: boolean) => {
+      for (let r = 0; r < robots; r++) {
+        if (released && r % 2 === 1 && tick >= 50) continue;
+        if ((2 * r + Math.min(tick, 199)) % cells === cell) return r;
+      }
+      return -1;
+    };
+    for (let t = 0; t < 220; t++) for (let c = 0; c < cells; c++) expect(table.holder(c, t)).toBe(expectedHolder(c, t, false));
+    for (let r = 1; r < robots; r += 2) table.release(r, 50);
+    for (let t = 0; t < 220; t++) for (let c = 0; c < cells; c++) expect(table.holder(c, t)).toBe(expectedHolder(c, t, true));
+  });
 });
