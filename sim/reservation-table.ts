@@ -37,6 +37,8 @@ export class ReservationTable {
   /** Live path per robot: cells at consecutive ticks from pathStart. */
   readonly paths: (Int32Array | null)[];
   readonly pathStart: Int32Array;
+  /** The last cell of each robot's live path (where it rests), or -1: `restCell` without reading the path. */
+  readonly pathEnd: Int32Array;
   /** First tick of each robot's live path that was written (earlier ticks were history). */
   private readonly writtenFrom: Int32Array;
   /** Bumped on every reserve and release, so callers can tell that nothing changed. */
@@ -72,6 +74,7 @@ export class ReservationTable {
     this.endFrom = new Int32Array(cells);
     this.paths = new Array(robots).fill(null);
     this.pathStart = new Int32Array(robots);
+    this.pathEnd = new Int32Array(robots).fill(none);
     this.writtenFrom = new Int32Array(robots);
   }
 
@@ -176,6 +179,7 @@ export class ReservationTable {
     this.revision++;
     this.paths[robot] = path;
     this.pathStart[robot] = start;
+    this.pathEnd[robot] = path[path.length - 1];
   }
 
   /** A robot standing still at `cell` from `tick` on (its initial placement). */
@@ -206,13 +210,13 @@ export class ReservationTable {
       this.restRevision++;
     }
     this.paths[robot] = null;
+    this.pathEnd[robot] = none;
     this.revision++;
   }
 
   /** The cell where a robot's live path ends (where it rests), or -1. */
   restCell(robot: number): number {
-    const path = this.paths[robot];
-    return path ? path[path.length - 1] : -1;
+    return this.pathEnd[robot];
   }
 
   /** Allows paths `length` ticks long from now (the horizon doubles until it fits; no memory is allocated). */
@@ -222,7 +226,7 @@ export class ReservationTable {
 
   /** Bytes held in typed arrays (for benchmarks). */
   memoryBytes(): number {
-    const arrays = [this.cellStart, this.cellCapacity, this.listLength, this.endRobot, this.endFrom, this.pathStart, this.writtenFrom, this.from, this.to, this.robot];
+    const arrays = [this.cellStart, this.cellCapacity, this.listLength, this.endRobot, this.endFrom, this.pathStart, this.pathEnd, this.writtenFrom, this.from, this.to, this.robot];
     let bytes = 0;
     for (const a of arrays) bytes += a.byteLength;
     for (const p of this.paths) if (p) bytes += p.byteLength;

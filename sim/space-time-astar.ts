@@ -541,10 +541,8 @@ export class SpaceTimeAStar {
   /** The cell robot r rests on since before `tick` (blocking everyone else), or -1. */
   private blockingRest(robot: number, tick: number): number {
     const table = this.table;
-    const path = table.paths[robot];
-    if (!path) return -1;
-    const cell = path[path.length - 1];
-    return table.endRobot[cell] === robot && table.endFrom[cell] <= tick ? cell : -1;
+    const cell = table.pathEnd[robot];
+    return cell >= 0 && table.endRobot[cell] === robot && table.endFrom[cell] <= tick ? cell : -1;
   }
 
   /**
