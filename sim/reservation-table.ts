@@ -48,6 +48,11 @@ export class ReservationTable {
   /** The latest current tick seen; path entries before it are history and never written. */
   private now = 0;
 
+  /** The latest current tick seen: every live path's ticks from here on are written as entries. */
+  get writtenSince(): number {
+    return this.now;
+  }
+
   // Interval pool: entry i covers ticks [from[i], to[i]] for robot[i]; a cell's list is
   // entries cellStart[c] .. cellStart[c] + listLength[c] - 1, in `from` order (ties in
   // insertion order), in a block of cellCapacity[c] slots.

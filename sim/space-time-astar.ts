@@ -138,6 +138,8 @@ export class SpaceTimeAStar {
   private startTick = 0;
   private goal = 0;
   private lastTick = 0;
+  /** The table holds every path entry from startTick on (see the swap test in `generate`). */
+  private pathsWritten = false;
   private heuristic: Int32Array = new Int32Array(0);
   /** Heading at the goal after the last successful search (the last move's, or the start heading). */
   lastHeading = 0;
@@ -200,6 +202,7 @@ export class SpaceTimeAStar {
     this.heuristic = heuristic;
     // Paths stay within the horizon; leave room for the hold at the goal.
     this.lastTick = startTick + table.horizon - 2 - (restForever ? 0 : holdTicks);
+    this.pathsWritten = startTick >= table.writtenSince;
     if (++this.searchId === 0x7fffffff) {
       this.cellStamp.fill(0);
       this.searchId = 1;
@@ -336,8 +339,12 @@ export class SpaceTimeAStar {
       let arrival = Math.max(tick + 1, lo[i]);
       const end = Math.min(latest, hi[i]);
       // A swap needs another robot on n at arrival - 1, so only an arrival at the very start
-      // of the interval can be one; one tick later n was already free.
-      if (arrival === lo[i] && this.table.swaps(cell, n, arrival - 1, this.robot)) arrival++;
+      // of the interval can be one; one tick later n was already free. It also needs that
+      // robot on `cell` at arrival, so `cell` is not free then: our interval has ended, and
+      // the arrival is the tick we must leave by (the table holds every live path from
+      // `writtenSince` on, and an earlier start than that reads positions it does not hold).
+      // On the demo hall that spares about 70% of the swap tests, and none of those found one.
+      if (arrival === lo[i] && (arrival === leaveBy || !this.pathsWritten) && this.table.swaps(cell, n, arrival - 1, this.robot)) arrival++;
       if (arrival > end) continue;
       if (isGoal) {
         this.push(n, -1, heading, arrival, node);
