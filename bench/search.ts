@@ -193,7 +193,7 @@ export function benchTokenPassingSearches(robots: number, hours = 2): Row {
       expansionsPerSearch: Number((counters.expansions / calls).toFixed(1)),
       unreachableSkips: counters.unreachableSkips ?? 0,
       // Searches answered by the free path down the distance table, with no state expanded.
-      gradientPaths: [...searchers].reduce((sum, s) => sum + s.gradientPaths, 0),
+      freePaths: [...searchers].reduce((sum, s) => sum + s.freePaths, 0),
       reachabilityPasses: [...searchers].reduce((sum, s) => sum + s.reachabilityPasses, 0),
       microsPerSearch: Number(((1000 * searchMs) / calls).toFixed(2)),
       searchShare: Number((searchMs / 1000 / record.timing.wallSeconds).toFixed(3)),

@@ -143,11 +143,16 @@ export class SpaceTimeAStar {
   private heuristic: Int32Array = new Int32Array(0);
   /** Heading at the goal after the last successful search (the last move's, or the start heading). */
   lastHeading = 0;
-  /** Try the free path down the distance table before searching (same result either way; off only to test that). */
+  /** Try the walk over the shortest states before searching (same result either way; off only to test that). */
   freePathFirst = true;
-  /** Searches answered by the free path down the distance table (`freeGradientPath`), without expanding a state. */
-  gradientPaths = 0;
-  private gradientBuffer = new Int32Array(64);
+  /** Searches answered by the walk over the shortest states (`freeShortestPath`), without the search. */
+  freePaths = 0;
+  // The walk's states (cell, parent), its untried states, and the cells it reached (stamped per walk).
+  private walkCell = new Int32Array(256);
+  private walkParent = new Int32Array(256);
+  private walkPending = new Int32Array(256);
+  private readonly walkStamp: Int32Array;
+  private walkId = 0;
   /** Searches that the reachability pass ended. */
   unreachableSkips = 0;
   /** Breadth-first labelling passes run for the reachability check. */
@@ -173,6 +178,7 @@ export class SpaceTimeAStar {
     this.label = new Int32Array(cells);
     this.labelQueue = new Int32Array(cells);
     this.passStamp = new Int32Array(cells);
+    this.walkStamp = new Int32Array(cells);
     this.labelRest = new Int32Array(table.robots);
   }
 
@@ -212,11 +218,11 @@ export class SpaceTimeAStar {
     this.intervalsUsed = 0;
     if (!this.goalWindows(goal, startTick + 1, holdTicks, restForever)) return null;
     if (this.freePathFirst && headings === 1 && readyTick === startTick) {
-      const free = this.freeGradientPath(start);
+      const free = this.freeShortestPath(start);
       if (free !== null) {
         // As the search below would have done on passing the reachability pre-check.
         this.unreachableRate *= 15 / 16;
-        this.gradientPaths++;
+        this.freePaths++;
         return free;
       }
     }
@@ -359,58 +365,109 @@ export class SpaceTimeAStar {
   }
 
   /**
-   * The path the search below returns when its first choices all work out, found without
-   * the search: from the start, step by step to the first neighbour (in neighbour order)
-   * one closer to the goal by the distance table that is free at the next tick and no swap,
-   * arriving at the goal at startTick + its distance inside an arrival window; null as soon
-   * as a step has no such neighbour (then the search runs as always).
+   * The path the search below returns when it finds one as short as the distance table
+   * allows (arrival at startTick + dist), found without the search's intervals and heap: a
+   * depth-first walk over the states one step closer to the goal and one tick later (a
+   * neighbour free at the next tick, no swap; the goal inside an arrival window), trying
+   * neighbours in neighbour order and going back to the deepest state left untried. Null
+   * (then the search runs as always) when there is no such path, when the walk would need
+   * more than 4 x dist + 64 expansions, or when a state has three or more such successors.
    *
    * Why this is the search's own answer, not just an equally good one: when the goal is
    * ready at startTick + dist, f = dist is the least key, and the states with f = dist are
    * exactly those one step closer and one tick later than a state with f = dist (h drops by
-   * at most 1 per move, arrival grows by at least 1). Among equal f the heap key prefers the
-   * deeper state, and among children of one expansion with the same key the first pushed
-   * (lowest neighbour index) reaches the root first (a push moves up past strictly larger
-   * keys only), so each pop takes the previous pop's first such child, until the goal. The
-   * cells on the way have strictly falling distances, so none was touched before; no
-   * expansion limit or lazy reachability check can intervene within dist expansions (the
-   * check waits for more than dist + 16). The vertex test (`isFree` at t + 1) and the swap
-   * test are the ones `generate` applies through the safe intervals; the table is read
-   * directly, so no interval is copied and no search state is written.
+   * at most 1 per move, the arrival grows by at least 1; every other state has a larger
+   * key). A cell with distance h can only be reached at startTick + dist - h or later, so
+   * each such cell is one state, pushed once (the later pushes find it reached). Among
+   * equal f the heap key prefers the deeper state; the children of one expansion are
+   * deeper than everything in the heap, and of two with the same key the first pushed
+   * (lower neighbour index) reaches the root first (a push moves up past strictly larger
+   * keys only), while the other stays the deepest untried state until all below the first
+   * are done. So the search's pops are this walk's, up to the goal, whose key is then the
+   * least. With three such children the heap's order among the later two depends on its
+   * layout, hence the bail-out. The expansion limit cannot intervene (the walk gives up
+   * before it), and the lazy reachability check only ends searches without a path. The
+   * vertex test (`isFree` at t + 1) and the swap test are the ones `generate` applies
+   * through the safe intervals; the table is read directly, so no interval is copied.
    */
-  private freeGradientPath(start: number): Int32Array | null {
+  private freeShortestPath(start: number): Int32Array | null {
     const heuristic = this.heuristic;
     const dist = heuristic[start];
     const startTick = this.startTick;
     const arrival = startTick + dist;
-    if (arrival > this.lastTick || dist > this.maxExpansions || this.ready(arrival) !== arrival) return null;
-    if (this.gradientBuffer.length <= dist) this.gradientBuffer = new Int32Array(2 * (dist + 1));
-    const buffer = this.gradientBuffer;
+    if (arrival > this.lastTick || this.ready(arrival) !== arrival) return null;
+    const limit = Math.min(4 * dist + 64, this.maxExpansions);
+    // Every expansion adds at most two states.
+    if (this.walkCell.length < 2 * limit + 2) {
+      this.walkCell = new Int32Array(2 * (2 * limit + 2));
+      this.walkParent = new Int32Array(2 * (2 * limit + 2));
+      this.walkPending = new Int32Array(2 * (2 * limit + 2));
+    }
+    const cellOf = this.walkCell;
+    const parentOf = this.walkParent;
+    const pending = this.walkPending;
+    const reached = this.walkStamp;
+    if (++this.walkId === 0x7fffffff) {
+      reached.fill(0);
+      this.walkId = 1;
+    }
+    const id = this.walkId;
     const table = this.table;
     const neighbors = this.layout.neighbors;
     const goal = this.goal;
     const robot = this.robot;
-    buffer[0] = start;
-    let cell = start;
-    for (let step = 1; step <= dist; step++) {
-      const tick = startTick + step - 1;
-      const closer = dist - step;
+    cellOf[0] = start;
+    parentOf[0] = -1;
+    reached[start] = id;
+    let states = 1;
+    let pendingCount = 0;
+    let current = 0;
+    for (let expanded = 1; expanded <= limit; expanded++) {
+      const cell = cellOf[current];
+      const closer = heuristic[cell] - 1;
+      const tick = arrival - heuristic[cell];
       const base = cell * 4;
-      let next = -1;
+      let first = -1;
+      let second = -1;
       for (let d = 0; d < 4; d++) {
         const n = neighbors[base + d];
-        if (n < 0 || heuristic[n] !== closer) continue;
+        if (n < 0 || heuristic[n] !== closer || reached[n] === id) continue;
         // The goal: the arrival window holds (ready(arrival) === arrival, checked above); other cells: free at tick + 1.
         if (n !== goal && !table.isFree(n, tick + 1, robot)) continue;
         if (table.swaps(cell, n, tick, robot)) continue;
-        next = n;
-        break;
+        if (n === goal) return this.walkTrace(current, dist);
+        if (first < 0) first = n;
+        else if (second < 0) second = n;
+        else return null;
       }
-      if (next < 0) return null;
-      buffer[step] = next;
-      cell = next;
+      if (first >= 0) {
+        reached[first] = id;
+        if (second >= 0) {
+          reached[second] = id;
+          cellOf[states] = second;
+          parentOf[states] = current;
+          pending[pendingCount++] = states++;
+        }
+        cellOf[states] = first;
+        parentOf[states] = current;
+        current = states++;
+      } else {
+        if (pendingCount === 0) return null;
+        current = pending[--pendingCount];
+      }
     }
-    return buffer.slice(0, dist + 1);
+    return null;
+  }
+
+  /** The walk's path: from the start down the parents of `last` (at distance 1), then the goal. */
+  private walkTrace(last: number, dist: number): Int32Array {
+    const path = new Int32Array(dist + 1);
+    path[dist] = this.goal;
+    for (let s = last; s >= 0; s = this.walkParent[s]) {
+      const cell = this.walkCell[s];
+      path[dist - this.heuristic[cell]] = cell;
+    }
+    return path;
   }
 
   /** Arrival windows at the goal from tick `from` on; false when there is none. */
@@ -688,6 +745,7 @@ export class SpaceTimeAStar {
       this.nodeCell, this.nodeInterval, this.nodeTick, this.nodeParent, this.nodeHeading, this.heapNode, this.heapKey,
       this.intervalLo, this.intervalHi, this.intervalBest, this.cellStamp, this.cellFirst, this.cellCount,
       this.windowLo, this.windowHi, this.label, this.labelQueue, this.labelRest, this.passStamp,
+      this.walkCell, this.walkParent, this.walkPending, this.walkStamp,
     ];
     let bytes = 0;
     for (const a of arrays) bytes += a.byteLength;
