@@ -40,6 +40,13 @@
  * always-on check did. The check only ends searches that could not succeed, so it never
  * changes a result.
  *
+ * Shortest layer first (`freeShortestPath`): when the goal can be entered at startTick +
+ * dist, the search's first pops are the states one step closer and one tick later; a
+ * depth-first walk over those states, in the heap's own order, reads the table directly
+ * (no intervals copied, no heap) and returns the search's very path when one exists (on the
+ * demo hall under saturated demand, 44% of token passing's searches at 40 robots, 26% at
+ * 200). Otherwise the search runs as below, from scratch.
+ *
  * Memory follows what a search touches: the safe intervals of a cell are read from the
  * table the first time the search reaches it (a stamp per cell marks them current) into a
  * pool that grows as needed; nothing is sized horizon x cells. Cost is bounded by
