@@ -69,6 +69,8 @@ export interface CapacityPoint {
   throughputPerRobot: number;
   /** Capacity added per robot added since the previous point (null on the first). */
   marginalPerAddedRobot: number | null;
+  /** The capacity pool reached its cap with robots idle (RunSummary.capacityPoolAtCap): an upper bound that needs that deep a queue. */
+  poolAtCap: boolean;
 }
 
 export interface SizeDocument {
@@ -82,7 +84,7 @@ export interface SizeDocument {
   handFormula: HandFormula;
   knee: { robots: number; marginalPerAddedRobot: number; firstRobotsPerRobot: number; share: number } | null;
   congestionFrom: number | null;
-  capacity: { robots: number; throughputPerHour: Interval; headroomPercent: number | null } | null;
+  capacity: { robots: number; throughputPerHour: Interval; headroomPercent: number | null; poolAtCap: boolean } | null;
   leadP95LimitSeconds: number | null;
   range: { min: number; max: number };
   replications: number;
@@ -304,6 +306,7 @@ export async function sizeFleet(scenarioAtTarget: Scenario, options: SizeOptions
         throughputPerHour: summary.throughputPerHour,
         throughputPerRobot: summary.throughputPerHour.mean / robots,
         marginalPerAddedRobot: previous ? (summary.throughputPerHour.mean - previous.throughputPerHour.mean) / (robots - previous.robots) : null,
+        poolAtCap: summary.capacityPoolAtCap === true,
       };
       document.capacityCurve.push(point);
       const firstPerRobot = document.capacityCurve[0].throughputPerRobot;
@@ -321,7 +324,7 @@ export async function sizeFleet(scenarioAtTarget: Scenario, options: SizeOptions
       const atAnswer = document.capacityCurve.find((c) => c.robots === result.recommended) ?? null;
       if (atAnswer) {
         const mean = atAnswer.throughputPerHour.mean;
-        document.capacity = { robots: atAnswer.robots, throughputPerHour: atAnswer.throughputPerHour, headroomPercent: Number.isFinite(mean) ? (mean / options.target - 1) * 100 : null };
+        document.capacity = { robots: atAnswer.robots, throughputPerHour: atAnswer.throughputPerHour, headroomPercent: Number.isFinite(mean) ? (mean / options.target - 1) * 100 : null, poolAtCap: atAnswer.poolAtCap };
       }
     }
     document.runs = { atTarget: atTarget.runs, capacity: capacityRuns?.runs ?? 0 };

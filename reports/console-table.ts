@@ -183,6 +183,11 @@ export function renderRunTable(summary: RunSummary): string {
     lines.push(
       `capacity run: saturated demand kept a pool of ${summary.capacityPoolDepth} open tasks (robots + task endpoints, grown while the policy left robots idle); lead time and tasks in system are not measured. Loaded distance per task served ${formatNumber(served, 'seconds')} m vs released ${formatNumber(offered, 'seconds')} m`,
     );
+    if (summary.capacityPoolAtCap) {
+      lines.push(
+        `warning: the pool reached its cap of ${summary.capacityPoolDepth} open tasks with robots still idle: the policy's rules held most tasks back, so its throughput grows with the tasks waiting and this capacity needs a queue that deep. It is an upper bound, not a rate the fleet sustains; judge the fleet at the target rate (run --rate, size)`,
+      );
+    }
   }
   const unreleased = traceWarning(summary);
   if (unreleased !== null) lines.push(unreleased);

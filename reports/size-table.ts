@@ -28,7 +28,7 @@ export interface SizeView {
   };
   knee: { robots: number; marginalPerAddedRobot: number; firstRobotsPerRobot: number; share: number } | null;
   congestionFrom: number | null;
-  capacity: { robots: number; throughputPerHour: Interval; headroomPercent: number | null } | null;
+  capacity: { robots: number; throughputPerHour: Interval; headroomPercent: number | null; poolAtCap?: boolean } | null;
   leadP95LimitSeconds: number | null;
   replications: number;
   hours: number;
@@ -78,6 +78,7 @@ export function renderSizeTable(d: SizeView): string {
   );
   if (d.capacity) {
     out.push(`capacity of ${d.capacity.robots} robots (saturated demand): ${withHalf(d.capacity.throughputPerHour)} tasks/h, headroom ${fixed(d.capacity.headroomPercent, 0)}% over the target`);
+    if (d.capacity.poolAtCap) out.push("  (an upper bound: the capacity run's pool of open tasks reached its cap with robots idle, so this policy's rate grows with the tasks waiting; the runs at the target decide)");
     if (d.capacity.headroomPercent !== null && d.capacity.headroomPercent < 0) {
       out.push('  (saturated demand keeps one task per robot to choose from; with a queue of waiting tasks the fleet picks nearer ones and does more, as its run at the target shows: little headroom either way)');
     }

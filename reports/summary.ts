@@ -121,6 +121,15 @@ export interface RunSummary {
   capacityRun: boolean;
   /** Saturated demand: the open-task pool's depth at the end (starts at robots + task endpoints, grows while the policy leaves robots idle; the largest over replications); null otherwise. */
   capacityPoolDepth: number | null;
+  /**
+   * Saturated demand: true when the pool reached its cap (robots + 64 x task endpoints) in
+   * some replication, i.e. the policy left robots idle even with that many tasks open (its
+   * own rules held them back). Such a policy's throughput grows with the tasks waiting, so
+   * this capacity is an upper bound that needs that deep a queue, not a rate the fleet
+   * sustains with a bounded one: judge the fleet at the target rate (run --rate, size).
+   * null for other demand.
+   */
+  capacityPoolAtCap: boolean | null;
   /** Mean loaded distance (meters) of tasks delivered and released after the warm-up: a gap shows dispatch favouring short tasks. */
   loadedMetersPerTask: { delivered: Interval; released: Interval };
   /** Total variation distance between the station shares of tasks served and released (whole run), per group: a large gap means some station's work is left waiting. */
@@ -384,6 +393,7 @@ export function summarize(
     deadlockRobotHoursLost: perReplicationInterval((w) => w.deadlockRobotHoursLost, 'nonNegative'),
     capacityRun: demand.kind === 'saturated',
     capacityPoolDepth: records[0].poolDepth === null ? null : Math.max(...records.map((r) => r.poolDepth ?? 0)),
+    capacityPoolAtCap: records[0].poolDepth === null ? null : records.some((r) => r.poolMaxDepth !== null && r.poolMaxDepth !== undefined && (r.poolDepth ?? 0) >= r.poolMaxDepth),
     loadedMetersPerTask: {
       delivered: interval('loadedMetersPerTask.delivered', (w) => w.deliveredLoadedMeters, 'nonNegative'),
       released: interval('loadedMetersPerTask.released', (w) => w.releasedLoadedMeters, 'nonNegative'),

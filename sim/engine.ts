@@ -103,6 +103,8 @@ export interface ReplicationRecord {
   openTaskReleaseTicks: number[];
   /** Saturated demand: the depth the open-task pool reached (it grows while the policy leaves robots idle); null otherwise. */
   poolDepth: number | null;
+  /** Saturated demand: the most the pool may grow to (robots + 64 x task endpoints, `capacityPoolDepth`); null otherwise. */
+  poolMaxDepth: number | null;
   /** Trace demand: tasks of the trace released after the run's end (never released); null otherwise. */
   traceTasksNotReleased: number | null;
   /** Trace demand: the run ended when the last task was done (delivered; round trips: shelf returned), before `run.hours`. */
@@ -308,6 +310,7 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
   let traceIndex = 0;
   let traceTasksNotReleased: number | null = null;
   let poolDepth: number | null = null;
+  let poolMaxDepth: number | null = null;
   /** Saturated demand: grows the pool when the last policy step left robots idle; true when it did. */
   let deepenPool: ((t: number) => boolean) | null = null;
   const secondsToTick = (s: number) => Math.floor(s / tickSeconds + 1e-9);
@@ -328,6 +331,7 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     // refilled it.
     const rule = capacityPoolDepth(robots, layout, roundTrip);
     poolDepth = rule.startDepth;
+    poolMaxDepth = rule.maxDepth;
     const topUp = (t: number) => {
       while (world.openTasks.length + heldTasks < poolDepth!) newRandomTask(t);
     };
@@ -828,6 +832,7 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     tasks: counts,
     openTaskReleaseTicks,
     poolDepth,
+    poolMaxDepth,
     traceTasksNotReleased,
     endedAtLastTraceDelivery: endTick < plannedEndTick,
     collisions: validator.collisions,

@@ -76,3 +76,20 @@ describe('demand mix gap (total variation distance between served and released s
     expect(flowBatch.demandMixGap.pickup!).toBeLessThan(0.05);
   });
 });
+
+describe('a capacity run whose pool hits its cap says its figure is an upper bound', () => {
+  // Token passing past about 40 busy robots on the demo hall leaves robots idle with the pool
+  // full (robots + 64 x 48 task endpoints = 3,136 at 64 robots): most open tasks end another
+  // robot's path. Its rate then grows with the tasks waiting, so Poisson demand below this
+  // capacity is not sustained (64 robots at 2,150 tasks/h: backlog +340/h, README). pibt uses
+  // every robot and never deepens the pool that far.
+  it('token passing at 64 robots: capacityPoolAtCap, with the pool at robots + 64 x endpoints; pibt at 64: not at the cap', () => {
+    const tp = summaryOf('token-passing', 64, 'saturated', 0.5);
+    expect(tp.capacityPoolAtCap).toBe(true);
+    expect(tp.capacityPoolDepth).toBe(64 + 64 * 48);
+    const pibt = summaryOf('pibt', 64, 'saturated', 0.5);
+    expect(pibt.capacityPoolAtCap).toBe(false);
+    expect(pibt.capacityPoolDepth!).toBeLessThan(64 + 64 * 48);
+    expect(summaryOf('pibt', 16, 900, 0.5).capacityPoolAtCap).toBeNull();
+  });
+});
