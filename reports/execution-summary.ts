@@ -8,7 +8,7 @@
  * over the whole run, the planned policies the waits their dependency graph imposed), with a
  * Student-t interval over replications, never from batches: one replication gives the
  * value and no interval. The throughput lost to delays is paired against the same
- * replications run without delays (experiments/delay-baseline.ts), after the same warm-up.
+ * replications run without delays (experiments/fault-baselines.ts), after the same warm-up.
  */
 import type { Scenario } from '../sim/model.ts';
 import type { ReplicationRecord } from '../sim/engine.ts';

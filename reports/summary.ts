@@ -237,8 +237,8 @@ function finestBatches(record: ReplicationRecord, cutIntervals: number): WindowM
 /**
  * `warmupOverride` imposes one cut on several runs. `breakdownBaseline`: throughput per
  * replication (post-warm-up, same order) of the same scenario without breakdowns, for the
- * paired throughput lost (experiments/breakdown-baseline.ts). `delayBaseline`: the same
- * without execution delays (experiments/delay-baseline.ts).
+ * paired throughput lost (experiments/fault-baselines.ts). `delayBaseline`: the same
+ * without execution delays (experiments/fault-baselines.ts).
  */
 export function summarize(
   scenario: Scenario,

@@ -174,29 +174,38 @@ function strict<T extends z.core.$ZodLooseShape>(shape: T, what: string, note = 
   });
 }
 
-const handlingSecondsSchema = z.union(
-  [
-    nonNegativeNumber('a number of seconds >= 0'),
-    z.discriminatedUnion(
-      'dist',
-      [
-        strict({ dist: z.literal('fixed'), seconds: nonNegativeNumber('a number of seconds >= 0') }, 'a mapping', ' (for dist: fixed)'),
-        strict(
-          { dist: z.literal('uniform'), min: nonNegativeNumber('a number of seconds >= 0'), max: nonNegativeNumber('a number of seconds >= 0') },
-          'a mapping',
-          ' (for dist: uniform)',
-        ).superRefine((value, context) => {
-          if (value.min > value.max) {
-            context.addIssue({ code: 'custom', path: ['max'], message: `a number of seconds >= min (${value.min})`, input: value.max });
-          }
-        }),
-        strict({ dist: z.literal('exponential'), mean: positiveNumber('a mean in seconds > 0') }, 'a mapping', ' (for dist: exponential)'),
-      ],
-      { error: 'dist: fixed, uniform or exponential' },
-    ),
-  ],
-  { error: 'a number of seconds >= 0, or {dist: uniform, min, max}, {dist: exponential, mean} or {dist: fixed, seconds}' },
-);
+/**
+ * A duration in seconds: a number, or {dist: fixed, seconds}, {dist: uniform, min, max},
+ * {dist: exponential, mean}. `bound` says whether 0 is allowed (handling: >= 0) or not
+ * (a delay of nothing is no delay: > 0); a uniform's min may be 0 either way.
+ */
+function secondsSpecSchema(bound: '>= 0' | '> 0') {
+  const seconds = (expected: string) => (bound === '>= 0' ? nonNegativeNumber(expected) : positiveNumber(expected));
+  const text = `a number of seconds ${bound}`;
+  return z.union(
+    [
+      seconds(text),
+      z.discriminatedUnion(
+        'dist',
+        [
+          strict({ dist: z.literal('fixed'), seconds: seconds(text) }, 'a mapping', ' (for dist: fixed)'),
+          strict({ dist: z.literal('uniform'), min: nonNegativeNumber('a number of seconds >= 0'), max: seconds(text) }, 'a mapping', ' (for dist: uniform)').superRefine(
+            (value, context) => {
+              if (value.min > value.max) {
+                context.addIssue({ code: 'custom', path: ['max'], message: `a number of seconds >= min (${value.min})`, input: value.max });
+              }
+            },
+          ),
+          strict({ dist: z.literal('exponential'), mean: positiveNumber('a mean in seconds > 0') }, 'a mapping', ' (for dist: exponential)'),
+        ],
+        { error: 'dist: fixed, uniform or exponential' },
+      ),
+    ],
+    { error: `${text}, or {dist: uniform, min, max}, {dist: exponential, mean} or {dist: fixed, seconds}` },
+  );
+}
+
+const handlingSecondsSchema = secondsSpecSchema('>= 0');
 
 /**
  * A duration in the field's own unit (`unit`: hours or minutes): a number is the mean of an
@@ -274,29 +283,7 @@ const handlingSchema = strict(
 );
 
 /** A delay in seconds: like a handling time, but with a positive mean (a delay of nothing is no delay). */
-const delaySecondsSchema = z.union(
-  [
-    positiveNumber('a number of seconds > 0'),
-    z.discriminatedUnion(
-      'dist',
-      [
-        strict({ dist: z.literal('fixed'), seconds: positiveNumber('a number of seconds > 0') }, 'a mapping', ' (for dist: fixed)'),
-        strict(
-          { dist: z.literal('uniform'), min: nonNegativeNumber('a number of seconds >= 0'), max: positiveNumber('a number of seconds > 0') },
-          'a mapping',
-          ' (for dist: uniform)',
-        ).superRefine((value, context) => {
-          if (value.min > value.max) {
-            context.addIssue({ code: 'custom', path: ['max'], message: `a number of seconds >= min (${value.min})`, input: value.max });
-          }
-        }),
-        strict({ dist: z.literal('exponential'), mean: positiveNumber('a mean in seconds > 0') }, 'a mapping', ' (for dist: exponential)'),
-      ],
-      { error: 'dist: fixed, uniform or exponential' },
-    ),
-  ],
-  { error: 'a number of seconds > 0, or {dist: uniform, min, max}, {dist: exponential, mean} or {dist: fixed, seconds}' },
-);
+const delaySecondsSchema = secondsSpecSchema('> 0');
 
 const delaysSchema = strict(
   {

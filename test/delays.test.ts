@@ -8,7 +8,7 @@ import { describe, expect, it } from 'vitest';
 import path from 'node:path';
 import { makeScenario } from './helpers.ts';
 import { runReplications } from '../experiments/replications.ts';
-import { withoutDelays } from '../experiments/delay-baseline.ts';
+import { withoutDelays } from '../experiments/fault-baselines.ts';
 import { summarize } from '../reports/summary.ts';
 import { loadScenarioFile } from '../scenarios/load.ts';
 import type { Scenario } from '../sim/model.ts';

@@ -2,8 +2,7 @@
 import { loadScenarioFile, type ScenarioOverrides } from '../../scenarios/load.ts';
 import { prepareSetup, runReplications } from '../../experiments/replications.ts';
 import { checkOutputFolder, writeOutputFolder } from '../../experiments/output-folder.ts';
-import { breakdownBaseline } from '../../experiments/breakdown-baseline.ts';
-import { delayBaseline } from '../../experiments/delay-baseline.ts';
+import { breakdownBaseline, delayBaseline } from '../../experiments/fault-baselines.ts';
 import { summarize, toJson, warmupCut, type WarmupInfo } from '../../reports/summary.ts';
 import { renderRunTable, traceWarning } from '../../reports/console-table.ts';
 import { replicationsCsv, stationsCsv, throughputSeriesCsv } from '../../reports/csv.ts';
