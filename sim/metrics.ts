@@ -57,6 +57,22 @@ export interface DeadlockEpisode {
 
 type TickCounts = Uint16Array | Uint32Array | Float64Array;
 
+/**
+ * Adds `weight` per tick over the ticks [from, end) into `target[interval * stride + offset]`,
+ * split at the sample-interval boundaries (`intervalTicks` long): the one way every per-interval
+ * time figure is accumulated (this file and sim/upkeep-metrics.ts).
+ */
+export function spreadOverIntervals(target: TickCounts, stride: number, offset: number, from: number, end: number, weight: number, intervalTicks: number): void {
+  if (weight === 0) return;
+  let t = from;
+  while (t < end) {
+    const i = Math.floor(t / intervalTicks);
+    const boundary = Math.min(end, (i + 1) * intervalTicks);
+    target[i * stride + offset] += (boundary - t) * weight;
+    t = boundary;
+  }
+}
+
 /** Integer tick counts up to `max` per cell, in the narrowest exact typed array. */
 function tickCounts(length: number, max: number): TickCounts {
   if (max <= 0xffff) return new Uint16Array(length);
@@ -180,15 +196,7 @@ export class MetricsRecorder {
 
   /** Adds `weight` per tick over [from, to) into `target[interval * stride + offset]`. */
   private spread(target: TickCounts, stride: number, offset: number, from: number, to: number, weight: number): void {
-    if (weight === 0) return;
-    const end = Math.min(to, this.endTick);
-    let t = from;
-    while (t < end) {
-      const i = Math.floor(t / this.intervalTicks);
-      const boundary = Math.min(end, (i + 1) * this.intervalTicks);
-      target[i * stride + offset] += (boundary - t) * weight;
-      t = boundary;
-    }
+    spreadOverIntervals(target, stride, offset, from, Math.min(to, this.endTick), weight, this.intervalTicks);
   }
 
   // Robot activity -----------------------------------------------------------------

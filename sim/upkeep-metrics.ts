@@ -8,6 +8,7 @@
  * Counts change only at upkeep transitions, so durations are accumulated lazily (added
  * when a count changes, spread over the intervals they overlap).
  */
+import { spreadOverIntervals } from './metrics.ts';
 /** What a replication record keeps: plain data (typed arrays and counts), so it crosses worker threads. */
 export interface RecordedUpkeepMetrics {
   intervalTicks: number;
@@ -76,17 +77,9 @@ export class UpkeepMetrics {
     return Math.min(this.intervalCount - 1, Math.floor(tick / this.intervalTicks));
   }
 
-  /** Adds `weight` per tick over [from, to) into `target[interval * stride + offset]`. */
+  /** Adds `weight` per tick over [from, to) into `target[interval * stride + offset]` (sim/metrics.ts). */
   private spread(target: Float64Array, stride: number, offset: number, from: number, to: number, weight: number): void {
-    if (weight === 0) return;
-    const end = Math.min(to, this.endTick);
-    let t = from;
-    while (t < end) {
-      const i = Math.floor(t / this.intervalTicks);
-      const boundary = Math.min(end, (i + 1) * this.intervalTicks);
-      target[i * stride + offset] += (boundary - t) * weight;
-      t = boundary;
-    }
+    spreadOverIntervals(target, stride, offset, from, Math.min(to, this.endTick), weight, this.intervalTicks);
   }
 
   /** Robots charging (of which queued) and broken from `tick` on (deltas). */
