@@ -148,6 +148,8 @@ export class SpaceTimeAStar {
   /** The table holds every path entry from startTick on (see the swap test in `generate`). */
   private pathsWritten = false;
   private heuristic: Int32Array = new Int32Array(0);
+  /** The last path found by `find` (its first `length` cells; reused by the next search). */
+  path = new Int32Array(256);
   /** Heading at the goal after the last successful search (the last move's, or the start heading). */
   lastHeading = 0;
   /** Try the walk over the shortest states before searching (same result either way; off only to test that). */
@@ -195,6 +197,16 @@ export class SpaceTimeAStar {
    * (the hold is not included). Null when no path is found within the limits.
    */
   search(request: SearchRequest): Int32Array | null {
+    const length = this.find(request);
+    return length < 0 ? null : this.path.slice(0, length);
+  }
+
+  /**
+   * The same search without allocating: returns the path's length (-1 when none is found)
+   * and leaves the path in `path` (indexes 0 .. length - 1), valid until the next search.
+   * Callers that copy the path into a larger one (a task's legs) use this.
+   */
+  find(request: SearchRequest): number {
     const table = this.table;
     this.searches++;
     const { robot, start, startTick, goal, heuristic, holdTicks, restForever } = request;
@@ -202,12 +214,14 @@ export class SpaceTimeAStar {
     const startHeading = headings === 4 ? (request.startHeading ?? 0) : 0;
     const readyTick = Math.max(startTick, request.readyTick ?? startTick);
     this.lastHeading = startHeading;
-    if (heuristic[start] >= unreachable) return null;
+    if (heuristic[start] >= unreachable) return -1;
     // A goal another robot rests on forever can never satisfy a rest; fail without searching.
-    if (restForever && table.endRobot[goal] >= 0 && table.endRobot[goal] !== robot) return null;
+    if (restForever && table.endRobot[goal] >= 0 && table.endRobot[goal] !== robot) return -1;
     if (start === goal) {
       const holds = restForever ? table.isFreeFrom(goal, startTick, robot) : table.isFreeDuring(goal, startTick, startTick + holdTicks, robot);
-      return holds ? Int32Array.of(start) : null;
+      if (!holds) return -1;
+      this.path[0] = start;
+      return 1;
     }
     this.robot = robot;
     this.startTick = startTick;
@@ -223,10 +237,10 @@ export class SpaceTimeAStar {
     this.nodes = 0;
     this.heapSize = 0;
     this.intervalsUsed = 0;
-    if (!this.goalWindows(goal, startTick + 1, holdTicks, restForever)) return null;
+    if (!this.goalWindows(goal, startTick + 1, holdTicks, restForever)) return -1;
     if (this.freePathFirst && headings === 1 && readyTick === startTick) {
       const free = this.freeShortestPath(start);
-      if (free !== null) {
+      if (free >= 0) {
         // As the search below would have done on passing the reachability pre-check.
         this.unreachableRate *= 15 / 16;
         this.freePaths++;
@@ -258,7 +272,7 @@ export class SpaceTimeAStar {
       this.intervalLo[first] = startTick;
     }
     // A robot still turning or held acts only from readyTick, on its start cell until then.
-    if (readyTick > this.intervalHi[startInterval]) return null;
+    if (readyTick > this.intervalHi[startInterval]) return -1;
     this.intervalBest[startInterval * headings + startHeading] = readyTick;
     this.push(start, startInterval, startHeading, readyTick, -1);
 
@@ -321,7 +335,7 @@ export class SpaceTimeAStar {
       }
     }
     this.expansions += expanded;
-    return null;
+    return -1;
   }
 
   /**
@@ -397,12 +411,12 @@ export class SpaceTimeAStar {
    * vertex test (`isFree` at t + 1) and the swap test are the ones `generate` applies
    * through the safe intervals; the table is read directly, so no interval is copied.
    */
-  private freeShortestPath(start: number): Int32Array | null {
+  private freeShortestPath(start: number): number {
     const heuristic = this.heuristic;
     const dist = heuristic[start];
     const startTick = this.startTick;
     const arrival = startTick + dist;
-    if (arrival > this.lastTick || this.ready(arrival) !== arrival) return null;
+    if (arrival > this.lastTick || this.ready(arrival) !== arrival) return -1;
     const limit = Math.min(4 * dist + 64, this.maxExpansions);
     // Every expansion adds at most two states.
     if (this.walkCell.length < 2 * limit + 2) {
@@ -445,7 +459,7 @@ export class SpaceTimeAStar {
         if (n === goal) return this.walkTrace(current, dist);
         if (first < 0) first = n;
         else if (second < 0) second = n;
-        else return null;
+        else return -1;
       }
       if (first >= 0) {
         reached[first] = id;
@@ -459,22 +473,22 @@ export class SpaceTimeAStar {
         parentOf[states] = current;
         current = states++;
       } else {
-        if (pendingCount === 0) return null;
+        if (pendingCount === 0) return -1;
         current = pending[--pendingCount];
       }
     }
-    return null;
+    return -1;
   }
 
-  /** The walk's path: from the start down the parents of `last` (at distance 1), then the goal. */
-  private walkTrace(last: number, dist: number): Int32Array {
-    const path = new Int32Array(dist + 1);
+  /** The walk's path into `path`: from the start down the parents of `last` (at distance 1), then the goal; returns its length. */
+  private walkTrace(last: number, dist: number): number {
+    const path = this.pathOfLength(dist + 1);
     path[dist] = this.goal;
     for (let s = last; s >= 0; s = this.walkParent[s]) {
       const cell = this.walkCell[s];
       path[dist - this.heuristic[cell]] = cell;
     }
-    return path;
+    return dist + 1;
   }
 
   /** Arrival windows at the goal from tick `from` on; false when there is none. */
@@ -603,10 +617,10 @@ export class SpaceTimeAStar {
   }
 
   /** Ends a search proven unreachable before it began. */
-  private unreachableEnd(): null {
+  private unreachableEnd(): number {
     this.unreachableSkips++;
     this.unreachableRate = (this.unreachableRate * 15) / 16 + 1 / 16;
-    return null;
+    return -1;
   }
 
   /** The cell robot r rests on since before `tick` (blocking everyone else), or -1. */
@@ -732,18 +746,30 @@ export class SpaceTimeAStar {
     return false;
   }
 
-  /** The path to `node` as cells at consecutive ticks from startTick (waits filled in). */
-  private trace(node: number): Int32Array {
+  /** The path to `node` into `path`, as cells at consecutive ticks from startTick (waits filled in); returns its length. */
+  private trace(node: number): number {
     const startTick = this.startTick;
-    const path = new Int32Array(this.nodeTick[node] - startTick + 1);
-    let end = path.length;
-    for (let n = node; n >= 0; n = this.nodeParent[n]) {
+    const length = this.nodeTick[node] - startTick + 1;
+    const path = this.pathOfLength(length);
+    const nodeCell = this.nodeCell;
+    const nodeTick = this.nodeTick;
+    const nodeParent = this.nodeParent;
+    let end = length;
+    for (let n = node; n >= 0; n = nodeParent[n]) {
       // The root may start after startTick (a robot still turning or held): it stood there from startTick.
-      const from = this.nodeParent[n] < 0 ? 0 : this.nodeTick[n] - startTick;
-      path.fill(this.nodeCell[n], from, end);
+      const from = nodeParent[n] < 0 ? 0 : nodeTick[n] - startTick;
+      // A loop, not fill(): most runs are one or two ticks, and fill's call costs more than that.
+      const cell = nodeCell[n];
+      for (let i = from; i < end; i++) path[i] = cell;
       end = from;
     }
-    return path;
+    return length;
+  }
+
+  /** The path buffer, grown to hold `length` cells. */
+  private pathOfLength(length: number): Int32Array {
+    if (this.path.length < length) this.path = new Int32Array(Math.max(length, 2 * this.path.length));
+    return this.path;
   }
 
   /** Bytes held in typed arrays (for benchmarks). */
@@ -752,7 +778,7 @@ export class SpaceTimeAStar {
       this.nodeCell, this.nodeInterval, this.nodeTick, this.nodeParent, this.nodeHeading, this.heapNode, this.heapKey,
       this.intervalLo, this.intervalHi, this.intervalBest, this.cellStamp, this.cellFirst, this.cellCount,
       this.windowLo, this.windowHi, this.label, this.labelQueue, this.labelRest, this.passStamp,
-      this.walkCell, this.walkParent, this.walkPending, this.walkStamp,
+      this.walkCell, this.walkParent, this.walkPending, this.walkStamp, this.path,
     ];
     let bytes = 0;
     for (const a of arrays) bytes += a.byteLength;

@@ -79,17 +79,19 @@ export function planTask(planner: Planner, robot: number, from: number, tick: nu
 }
 
 // Scratch for one plan at a time (planning is single-threaded): the stops of the task and
-// the leg found to each, so the whole path is allocated once, at its final length.
+// the leg found to each (copied out of the search's own buffer, `SpaceTimeAStar.find`), so
+// the whole path is allocated once, at its final length.
 const stopCells = new Int32Array(3);
 const stopHolds = new Int32Array(3);
-const legs: (Int32Array | null)[] = [null, null, null];
+const legs = [new Int32Array(256), new Int32Array(256), new Int32Array(256)];
+const legLength = new Int32Array(3);
 /** Heading of the robot at the end of the last leg planStops searched. */
 let lastLegHeading = 0;
 
 /** Ticks from the start of the first leg to the end of the last stop's handling. */
 function legTicks(stopCount: number): number {
   let ticks = 0;
-  for (let i = 0; i < stopCount; i++) ticks += legs[i]!.length - 1 + stopHolds[i];
+  for (let i = 0; i < stopCount; i++) ticks += legLength[i] - 1 + stopHolds[i];
   return ticks;
 }
 
@@ -98,19 +100,14 @@ function assemble(stopCount: number, rest: Int32Array | null): Int32Array {
   const path = new Int32Array(1 + legTicks(stopCount) + (rest ? rest.length - 1 : 0));
   let offset = 0;
   for (let i = 0; i < stopCount; i++) {
-    const leg = legs[i]!;
-    // Every leg after the first starts on the previous leg's last cell: skip it.
-    if (i === 0) {
-      path.set(leg, 0);
-      offset = leg.length;
-    } else {
-      path.set(leg.subarray(1), offset);
-      offset += leg.length - 1;
-    }
-    path.fill(stopCells[i], offset, offset + stopHolds[i]);
-    offset += stopHolds[i];
+    const leg = legs[i];
+    // Every leg after the first starts on the previous leg's last cell: skip it. Loops, not
+    // set()/fill(): legs are tens of cells, and each call (with its subarray) costs more.
+    for (let k = i === 0 ? 0 : 1, length = legLength[i]; k < length; k++) path[offset++] = leg[k];
+    const cell = stopCells[i];
+    for (let end = offset + stopHolds[i]; offset < end; ) path[offset++] = cell;
   }
-  if (rest) path.set(rest.subarray(1), offset);
+  if (rest) for (let k = 1; k < rest.length; k++) path[offset++] = rest[k];
   return path;
 }
 
@@ -135,11 +132,15 @@ function planStops(planner: Planner, robot: number, from: number, tick: number, 
   for (let i = 0; i < stopCount; i++) {
     const goal = stopCells[i];
     const hold = stopHolds[i];
-    const leg = search.search(requestFor(robot, cell, t, goal, distances.to(goal), hold, i === stopCount - 1 && restAtEnd, heading, readyTick));
-    if (!leg) return -1;
-    legs[i] = leg;
+    const length = search.find(requestFor(robot, cell, t, goal, distances.to(goal), hold, i === stopCount - 1 && restAtEnd, heading, readyTick));
+    if (length < 0) return -1;
+    if (legs[i].length < length) legs[i] = new Int32Array(2 * length);
+    const leg = legs[i];
+    const found = search.path;
+    for (let k = 0; k < length; k++) leg[k] = found[k];
+    legLength[i] = length;
     heading = search.lastHeading;
-    t += leg.length - 1;
+    t += length - 1;
     if (i === 0) pickupTick = t;
     t += hold;
     readyTick = t;
