@@ -13,7 +13,8 @@
  * searches' reads (safe intervals, holder, swap tests) walk consecutive slots instead of
  * chasing links; a block that fills moves to the end of the pool at twice its capacity,
  * and the pool is repacked when it runs out. Intervals that ended before the current tick
- * are dropped whenever their cell's list is written, so memory follows the live
+ * are dropped whenever their cell's list is written or its safe intervals are read, so
+ * searches do not step over history and memory follows the live
  * reservations (about 12 bytes per run of a live path, plus block slack), not horizon x
  * cells.
  *
@@ -148,12 +149,17 @@ export class ReservationTable {
    */
   safeIntervals(cell: number, from: number, self: number, lo: Int32Array, hi: Int32Array, at: number): number {
     const rester = this.endRobot[cell];
-    const limit = rester >= 0 && rester !== self ? this.endFrom[cell] : foreverTick + 1;
+    // The last free tick (kept below 2^30 so that it stays a small integer for the JIT).
+    const last = rester >= 0 && rester !== self ? this.endFrom[cell] - 1 : foreverTick;
+    const first = this.cellStart[cell];
+    // Entries that ended before now are read by no query; a cell nobody wrote to for a while
+    // keeps them until its next write, so drop them here, where the searches read them most.
+    if (this.listLength[cell] > 0 && this.to[first] < this.now) this.dropEnded(cell);
     let cursor = from;
     let count = 0;
-    for (let e = this.cellStart[cell], end = e + this.listLength[cell]; e < end; e++) {
+    for (let e = first, end = e + this.listLength[cell]; e < end; e++) {
       const start = this.from[e];
-      if (start >= limit) break;
+      if (start > last) break;
       const end = this.to[e];
       if (end < cursor || this.robot[e] === self) continue;
       if (start > cursor) {
@@ -163,12 +169,33 @@ export class ReservationTable {
       }
       cursor = end + 1;
     }
-    if (cursor < limit) {
+    if (cursor <= last) {
       lo[at + count] = cursor;
-      hi[at + count] = limit - 1;
+      hi[at + count] = last;
       count++;
     }
     return count;
+  }
+
+  /** Removes the entries of `cell` that ended before now (keeping the others in order). */
+  private dropEnded(cell: number): void {
+    const first = this.cellStart[cell];
+    const end = first + this.listLength[cell];
+    const froms = this.from;
+    const tos = this.to;
+    const robots = this.robot;
+    const now = this.now;
+    let write = first;
+    for (let e = first; e < end; e++) {
+      if (tos[e] < now) continue;
+      if (write !== e) {
+        froms[write] = froms[e];
+        tos[write] = tos[e];
+        robots[write] = robots[e];
+      }
+      write++;
+    }
+    this.listLength[cell] = write - first;
   }
 
   /**

@@ -77,6 +77,7 @@
 import type { Layout } from './layout.ts';
 import { unreachable } from './distance-table.ts';
 import { turnsLowerBound } from './headings.ts';
+import { copyPath } from './path-slab.ts';
 import { foreverTick, type ReservationTable } from './reservation-table.ts';
 
 export interface SearchRequest {
@@ -198,7 +199,7 @@ export class SpaceTimeAStar {
    */
   search(request: SearchRequest): Int32Array | null {
     const length = this.find(request);
-    return length < 0 ? null : this.path.slice(0, length);
+    return length < 0 ? null : copyPath(this.path, length);
   }
 
   /**
@@ -313,10 +314,33 @@ export class SpaceTimeAStar {
       const leaveBy = this.intervalHi[interval] + 1;
       const base = cell * 4;
       if (headings === 1) {
+        // `generate` written out for states without a heading (the common case): the same
+        // successors in the same order, without a call per neighbour.
+        const latest = leaveBy < this.lastTick ? leaveBy : this.lastTick;
         for (let d = 0; d < 4; d++) {
           const n = neighbors[base + d];
           if (n < 0 || heuristic[n] >= unreachable) continue;
-          this.generate(node, cell, tick, leaveBy, n, 0);
+          if (n === goal) {
+            this.generate(node, cell, tick, leaveBy, n, 0);
+            continue;
+          }
+          const first = this.cellStamp[n] === this.searchId ? this.cellFirst[n] : this.touch(n);
+          // Read after touch, which may grow the pool.
+          const lo = this.intervalLo;
+          const hi = this.intervalHi;
+          const best = this.intervalBest;
+          for (let i = first, end = first + this.cellCount[n]; i < end; i++) {
+            const from = lo[i];
+            if (from > latest) break;
+            const until = hi[i];
+            if (until <= tick) continue;
+            let arrival = tick + 1 > from ? tick + 1 : from;
+            // The swap test of `generate` (see there).
+            if (arrival === from && (arrival === leaveBy || !this.pathsWritten) && table.swaps(cell, n, arrival - 1, this.robot)) arrival++;
+            if (arrival > (latest < until ? latest : until) || arrival >= best[i]) continue;
+            best[i] = arrival;
+            this.push(n, i, 0, arrival, node);
+          }
         }
         continue;
       }

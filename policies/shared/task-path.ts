@@ -14,6 +14,7 @@
  * robot turns, while it stands, towards the direction of its next move (sim/plan-execution.ts).
  */
 import { unreachable, type DistanceTables } from '../../sim/distance-table.ts';
+import { newPath } from '../../sim/path-slab.ts';
 import type { ReservationTable } from '../../sim/reservation-table.ts';
 import type { SearchRequest, SpaceTimeAStar } from '../../sim/space-time-astar.ts';
 import type { World } from '../../sim/world.ts';
@@ -97,7 +98,7 @@ function legTicks(stopCount: number): number {
 
 /** The planned legs with the handling waits between them, then `rest` (a leg from the last stop on) if given. */
 function assemble(stopCount: number, rest: Int32Array | null): Int32Array {
-  const path = new Int32Array(1 + legTicks(stopCount) + (rest ? rest.length - 1 : 0));
+  const path = newPath(1 + legTicks(stopCount) + (rest ? rest.length - 1 : 0));
   let offset = 0;
   for (let i = 0; i < stopCount; i++) {
     const leg = legs[i];
