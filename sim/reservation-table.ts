@@ -284,7 +284,20 @@ export class ReservationTable {
 
   /** Inserts [from, to] for robot into the cell's list in `from` order, dropping entries that ended before now. */
   private insert(cell: number, from: number, to: number, robot: number): void {
-    if (this.listLength[cell] === this.cellCapacity[cell]) this.move(cell);
+    if (this.listLength[cell] > 0 && this.to[this.cellStart[cell]] < this.now) this.dropEnded(cell);
+    const length = this.listLength[cell];
+    // Most entries are the latest on their cell (paths are planned forwards in time): append
+    // without walking the list.
+    if (length === 0 || this.from[this.cellStart[cell] + length - 1] <= from) {
+      if (length === this.cellCapacity[cell]) this.move(cell);
+      const at = this.cellStart[cell] + length;
+      this.from[at] = from;
+      this.to[at] = to;
+      this.robot[at] = robot;
+      this.listLength[cell] = length + 1;
+      return;
+    }
+    if (length === this.cellCapacity[cell]) this.move(cell);
     const first = this.cellStart[cell];
     const end = first + this.listLength[cell];
     const froms = this.from;
