@@ -69,6 +69,8 @@ const maxSwapCandidates = 3;
 const swapRetryTicks = 8;
 
 export class TokenPassing implements Policy {
+  /** Skip the requests `stillNothing` proves fruitless (same choices either way; off only to test that). */
+  static skipFruitlessRequests = true;
   private readonly table: ReservationTable;
   private readonly planner: Planner;
   private readonly execution: PlanExecution;
@@ -194,7 +196,7 @@ export class TokenPassing implements Policy {
       const phase = world.robotPhase[r];
       if (world.robotBroken[r] || (phase !== phaseIdle && phase !== Phase.ToCharger && phase !== Phase.WaitingForCharger)) continue;
       if (this.triedVersion[r] === world.version && this.triedRevision[r] === this.wakeRevision()) continue;
-      if (this.emptyAt[r] >= 0 && this.stillNothing(r)) continue;
+      if (this.emptyAt[r] >= 0 && TokenPassing.skipFruitlessRequests && this.stillNothing(r)) continue;
       if (this.retryAt[r] > tick) {
         retryTick = Math.min(retryTick, this.retryAt[r]);
         continue;
