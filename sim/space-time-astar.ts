@@ -180,7 +180,7 @@ export class SpaceTimeAStar {
     readonly turnTicks = 0,
   ) {
     this.headings = turnTicks > 0 ? 4 : 1;
-    this.intervalBest = new Int32Array(1024 * this.headings);
+    this.intervalBest = new Int32Array(1024 * this.headings).fill(never);
     const cells = layout.cellCount;
     this.cellStamp = new Int32Array(cells);
     this.cellFirst = new Int32Array(cells);
@@ -237,6 +237,8 @@ export class SpaceTimeAStar {
     }
     this.nodes = 0;
     this.heapSize = 0;
+    // Slots past the used ones hold `never` (touch relies on it): reset what the last search used.
+    this.intervalBest.fill(never, 0, this.intervalsUsed * headings);
     this.intervalsUsed = 0;
     if (!this.goalWindows(goal, startTick + 1, holdTicks, restForever)) return -1;
     if (this.freePathFirst && headings === 1 && readyTick === startTick) {
@@ -567,9 +569,7 @@ export class SpaceTimeAStar {
     if (needed > this.intervalLo.length) this.growIntervals(needed);
     const at = this.intervalsUsed;
     const count = table.safeIntervals(cell, this.startTick + 1, this.robot, this.intervalLo, this.intervalHi, at);
-    // A loop, not fill(): a cell has one or two intervals, and fill's call costs more than that.
-    const best = this.intervalBest;
-    for (let i = at * this.headings, end = (at + count) * this.headings; i < end; i++) best[i] = never;
+    // Their earliest ticks are `never` already: every slot past the used ones is (`find` resets them).
     this.intervalsUsed += count;
     this.cellStamp[cell] = this.searchId;
     this.cellFirst[cell] = at;
@@ -814,7 +814,9 @@ export class SpaceTimeAStar {
     while (capacity < needed) capacity *= 2;
     this.intervalLo = resized(this.intervalLo, capacity);
     this.intervalHi = resized(this.intervalHi, capacity);
-    this.intervalBest = resized(this.intervalBest, capacity * this.headings);
+    const best = new Int32Array(capacity * this.headings).fill(never);
+    best.set(this.intervalBest);
+    this.intervalBest = best;
   }
 
   private growNodes(): void {
