@@ -121,6 +121,31 @@ export class ReservationTable {
     return this.positionAt(other, tick + 1) === from;
   }
 
+  /**
+   * True when `self` may step from `from` onto `to` between `tick` and `tick + 1`: `to` is
+   * free at tick + 1 (unless `toFree`: the caller knows it is) and the step swaps with no
+   * robot. The same answer as `(toFree || isFree(to, tick + 1, self)) && !swaps(from, to,
+   * tick, self)`, read in one pass over `to`'s list (the walk over the shortest states asks
+   * it for every step it tries).
+   */
+  mayStep(from: number, to: number, tick: number, self: number, toFree: boolean): boolean {
+    const next = tick + 1;
+    let other = -1;
+    for (let e = this.cellStart[to], end = e + this.listLength[to]; e < end; e++) {
+      const start = this.from[e];
+      if (start > next) break;
+      const stop = this.to[e];
+      if (!toFree && stop >= next && this.robot[e] !== self) return false;
+      // The holder at `tick`: the first entry that covers it, as `holder` reads it.
+      if (other < 0 && start <= tick && stop >= tick) other = this.robot[e];
+    }
+    const rester = this.endRobot[to];
+    if (!toFree && rester >= 0 && rester !== self && this.endFrom[to] <= next) return false;
+    if (other < 0) other = rester >= 0 && this.endFrom[to] <= tick ? rester : -1;
+    if (other < 0 || other === self || from === to) return true;
+    return this.positionAt(other, next) !== from;
+  }
+
   /** True when `cell` is free for `self` at every tick >= `tick`. */
   isFreeFrom(cell: number, tick: number, self: number): boolean {
     const rester = this.endRobot[cell];

@@ -480,8 +480,7 @@ export class SpaceTimeAStar {
         const n = neighbors[base + d];
         if (n < 0 || heuristic[n] !== closer || reached[n] === id) continue;
         // The goal: the arrival window holds (ready(arrival) === arrival, checked above); other cells: free at tick + 1.
-        if (n !== goal && !table.isFree(n, tick + 1, robot)) continue;
-        if (table.swaps(cell, n, tick, robot)) continue;
+        if (!table.mayStep(cell, n, tick, robot, n === goal)) continue;
         if (n === goal) return this.walkTrace(current, dist);
         if (first < 0) first = n;
         else if (second < 0) second = n;

@@ -63,7 +63,7 @@ class NaiveTable {
 }
 
 describe('ReservationTable against a naive model (property test, fast-check)', () => {
-  it('answers isFree, holder, swaps, isFreeFrom, isFreeDuring, safeIntervals, positionAt and restCell like the model', () => {
+  it('answers isFree, holder, swaps, mayStep, isFreeFrom, isFreeDuring, safeIntervals, positionAt and restCell like the model', () => {
     fc.assert(
       fc.property(fc.integer({ min: 0, max: 1_000_000 }), (seed) => {
         const random = seedrandom(`table-${seed}`);
@@ -125,6 +125,10 @@ describe('ReservationTable against a naive model (property test, fast-check)', (
             if (runs.length > 0 && runs[runs.length - 1][1] === base + 40) runs[runs.length - 1][1] = foreverTick;
             expect(Array.from({ length: count }, (_, i) => [lo[i], hi[i]])).toEqual(runs);
             const neighbour = Math.floor(random() * cells);
+            // The walk's one-pass step test answers as the two queries it stands for (each checked against the model here).
+            for (const toFree of [false, true]) {
+              expect(table.mayStep(neighbour, cell, tick, self, toFree)).toBe((toFree || table.isFree(cell, tick + 1, self)) && !table.swaps(neighbour, cell, tick, self));
+            }
             const other = expectedHolders[0];
             if (holders.length <= 1) {
               const swap = neighbour !== cell && other >= 0 && other !== self && model.positionAt(other, tick + 1) === neighbour;
