@@ -65,6 +65,13 @@ import { Phase, isHandling, type World } from './world.ts';
 // Read once: imported bindings are getters under the TypeScript loader, and these are read per robot per step.
 const phaseIdle = Phase.Idle;
 const phaseCharging = Phase.Charging;
+const phaseToPickup = Phase.ToPickup;
+const phaseHandlingPickup = Phase.HandlingPickup;
+const phaseToDrop = Phase.ToDrop;
+const phaseHandlingDrop = Phase.HandlingDrop;
+const phaseToReturn = Phase.ToReturn;
+const phaseHandlingReturn = Phase.HandlingReturn;
+const phaseToCharger = Phase.ToCharger;
 const handlingPhase = isHandling;
 
 /** What each robot did over the evaluated step. */
@@ -94,6 +101,9 @@ export interface EvaluationResult {
 
 export class DeadlockDetector {
   readonly status: Uint8Array;
+  /** Column and row of every cell (no division per robot per tick). */
+  private readonly cellX: Int32Array;
+  private readonly cellY: Int32Array;
   /** Station (index into the station list) whose queue the robot stands in, or -1. */
   readonly queueStation: Int32Array;
   readonly episodes: DetectorEpisode[] = [];
@@ -120,8 +130,18 @@ export class DeadlockDetector {
   /** Wait edges: up to four robots per blocked robot. */
   private readonly waitsOn: Int32Array;
   private readonly waitCount: Uint8Array;
-  private readonly predecessorStart: Int32Array;
-  private readonly predecessors: Int32Array;
+  /** Reversed wait edges of the last classification: first edge per robot waited on (-1: none), then the waiting robot and the next edge. */
+  private readonly predecessorHead: Int32Array;
+  private readonly edgeRobot: Int32Array;
+  private readonly edgeNext: Int32Array;
+  /** Robots waited on at the last classification. */
+  private readonly targets: Int32Array;
+  private targetCount = 0;
+  /** Robots standing with a goal at this evaluation, blocked robots now and at the last evaluation (ascending). */
+  private readonly standing: Int32Array;
+  private readonly blockedList: Int32Array;
+  private readonly previousBlocked: Int32Array;
+  private previousBlockedCount = 0;
   private readonly reached: Uint8Array;
   private readonly bfs: Int32Array;
   private readonly nextOccupant: Int32Array;
@@ -161,6 +181,12 @@ export class DeadlockDetector {
   ) {
     this.robots = robots;
     this.status = new Uint8Array(robots);
+    this.cellX = new Int32Array(layout.cellCount);
+    this.cellY = new Int32Array(layout.cellCount);
+    for (let c = 0; c < layout.cellCount; c++) {
+      this.cellX[c] = c % layout.width;
+      this.cellY[c] = (c - this.cellX[c]) / layout.width;
+    }
     this.queueStation = new Int32Array(robots).fill(-1);
     this.lastProgress = new Int32Array(robots);
     this.fields = distances.fields;
@@ -179,8 +205,13 @@ export class DeadlockDetector {
     this.memberSince = new Int32Array(robots);
     this.waitsOn = new Int32Array(robots * 4);
     this.waitCount = new Uint8Array(robots);
-    this.predecessorStart = new Int32Array(robots + 1);
-    this.predecessors = new Int32Array(robots * 4);
+    this.predecessorHead = new Int32Array(robots).fill(-1);
+    this.edgeRobot = new Int32Array(robots * 4);
+    this.edgeNext = new Int32Array(robots * 4);
+    this.targets = new Int32Array(robots);
+    this.standing = new Int32Array(robots);
+    this.blockedList = new Int32Array(robots);
+    this.previousBlocked = new Int32Array(robots);
     this.reached = new Uint8Array(robots);
     this.bfs = new Int32Array(robots);
     this.nextOccupant = new Int32Array(layout.cellCount);
@@ -225,65 +256,104 @@ export class DeadlockDetector {
     const robots = this.robots;
     const cells = world.robotCell;
     const phases = world.robotPhase;
+    const robotTask = world.robotTask;
+    const broken = world.robotBroken;
+    const stopPending = world.robotStopPending;
+    const turnUntil = world.robotTurnUntil;
+    const heldUntil = world.robotHeldUntil;
+    const now = world.currentTick;
+    const taskPickup = world.taskPickup;
+    const taskDrop = world.taskDrop;
+    const taskReturn = world.taskReturn;
+    const robotCharger = world.robotCharger;
     const status = this.status;
-    const neighbors = this.layout.neighbors;
-    const width = this.layout.width;
-
-    // Cells taken at tick + 1.
+    const lastCell = this.lastCell;
+    const movesSinceProgress = this.movesSinceProgress;
+    const boxMinX = this.boxMinX;
+    const boxMaxX = this.boxMaxX;
+    const boxMinY = this.boxMinY;
+    const boxMaxY = this.boxMaxY;
+    const cellX = this.cellX;
+    const cellY = this.cellY;
+    const goalSeen = this.goalSeen;
+    const lastProgress = this.lastProgress;
+    const episodeOf = this.episodeOf;
+    const waitCount = this.waitCount;
+    const goalProgress = this.goalProgress;
+    const deadlockTicks = this.deadlockTicks;
     const stamp = ++this.stamp;
     const nextStamp = this.nextStamp;
     const nextOccupant = this.nextOccupant;
-    for (let r = 0; r < robots; r++) {
-      const c = world.isFixed(r) ? cells[r] : next[r];
-      nextStamp[c] = stamp;
-      nextOccupant[c] = r;
-    }
-
-    // One pass: progress since the last evaluation, then status and wait edges. Fields are
-    // looked at only for robots that moved (progress) or stand with a goal (their wishes).
-    let blocked = 0;
+    const standing = this.standing;
+    let standingCount = 0;
     let idle = 0;
     const candidates = this.livelockCandidates;
     candidates.length = 0;
+
+    // One pass over the robots, reading the world's arrays (world.isFixed, goalOf and
+    // mayTakeTask inlined: this runs per robot per tick): the cell each takes at tick + 1,
+    // progress since the last evaluation, and the status of every robot but those that
+    // stand with a goal, whose wishes are looked at once every cell of tick + 1 is known.
+    // A robot moving or in service costs its progress watch only; fields are looked at only
+    // for robots that moved (progress) or stand with a goal (their wishes).
     for (let r = 0; r < robots; r++) {
       const cell = cells[r];
-      const moved = this.lastCell[r] >= 0 && this.lastCell[r] !== cell;
-      if (moved) this.movesSinceProgress[r]++;
-      this.lastCell[r] = cell;
-      const x = cell % width;
-      const y = (cell - x) / width;
-      if (this.boxMinX[r] < 0) {
-        this.boxMinX[r] = this.boxMaxX[r] = x;
-        this.boxMinY[r] = this.boxMaxY[r] = y;
-      } else if (moved) {
-        if (x < this.boxMinX[r]) this.boxMinX[r] = x;
-        else if (x > this.boxMaxX[r]) this.boxMaxX[r] = x;
-        if (y < this.boxMinY[r]) this.boxMinY[r] = y;
-        else if (y > this.boxMaxY[r]) this.boxMaxY[r] = y;
-      }
       const phase = phases[r];
-      const goal = world.goalOf(r);
-      if (goal !== this.goalSeen[r]) {
-        this.goalSeen[r] = goal;
+      const fixed =
+        phase === phaseHandlingPickup || phase === phaseHandlingDrop || phase === phaseHandlingReturn || phase === phaseCharging || broken[r] === 1 || turnUntil[r] > now || heldUntil[r] > now;
+      const to = fixed ? cell : next[r];
+      nextStamp[to] = stamp;
+      nextOccupant[to] = r;
+
+      const before = lastCell[r];
+      const moved = before >= 0 && before !== cell;
+      lastCell[r] = cell;
+      // The box of cells since the last progress changes only when the robot moved (or starts afresh).
+      if (moved || boxMinX[r] < 0) {
+        if (moved) movesSinceProgress[r]++;
+        const x = cellX[cell];
+        const y = cellY[cell];
+        if (boxMinX[r] < 0) {
+          boxMinX[r] = boxMaxX[r] = x;
+          boxMinY[r] = boxMaxY[r] = y;
+        } else {
+          if (x < boxMinX[r]) boxMinX[r] = x;
+          else if (x > boxMaxX[r]) boxMaxX[r] = x;
+          if (y < boxMinY[r]) boxMinY[r] = y;
+          else if (y > boxMaxY[r]) boxMaxY[r] = y;
+        }
+      }
+      const goal =
+        phase === phaseToPickup
+          ? taskPickup[robotTask[r]]
+          : phase === phaseToDrop
+            ? taskDrop[robotTask[r]]
+            : phase === phaseToReturn
+              ? taskReturn[robotTask[r]]
+              : phase === phaseToCharger
+                ? robotCharger[r]
+                : -1;
+      if (goal !== goalSeen[r]) {
+        goalSeen[r] = goal;
         this.progress(r, tick);
-        if (goal >= 0) this.goalProgress.observe(r, goal, cell); // starts following the new goal
-      } else if (goal < 0 || world.robotBroken[r]) {
+        if (goal >= 0) goalProgress.observe(r, goal, cell); // starts following the new goal
+      } else if (goal < 0 || broken[r] === 1) {
         // No goal (idle, handling, charging) or broken down: nothing to progress towards; keep the clock fresh.
-        this.lastProgress[r] = tick;
-        this.movesSinceProgress[r] = 0;
-      } else if (moved && this.goalProgress.observe(r, goal, cell)) {
+        lastProgress[r] = tick;
+        movesSinceProgress[r] = 0;
+      } else if (moved && goalProgress.observe(r, goal, cell)) {
         this.progress(r, tick);
       }
 
-      this.waitCount[r] = 0;
-      if (world.mayTakeTask(r)) idle++;
+      waitCount[r] = 0;
+      if (phase === phaseIdle && robotTask[r] < 0 && broken[r] === 0 && stopPending[r] === 0) idle++;
       // Handling, charging, broken down, turning or held back by a delay: in service, a robot others queue behind.
-      if (world.isFixed(r)) {
+      if (fixed) {
         status[r] = WaitStatus.Handling;
         continue;
       }
-      if (goal >= 0 && this.episodeOf[r] < 0 && tick - this.lastProgress[r] >= this.deadlockTicks) candidates.push(r);
-      if (next[r] !== cell) {
+      if (goal >= 0 && episodeOf[r] < 0 && tick - lastProgress[r] >= deadlockTicks) candidates.push(r);
+      if (to !== cell) {
         status[r] = WaitStatus.Moving;
         continue;
       }
@@ -292,19 +362,32 @@ export class DeadlockDetector {
         status[r] = WaitStatus.IdleStill;
         continue;
       }
+      standing[standingCount++] = r;
+    }
+
+    // Robots standing with a goal: free (a cell they want is free at tick + 1) or blocked
+    // (waiting on the robots that hold every such cell).
+    const neighbors = this.layout.neighbors;
+    const waitsOn = this.waitsOn;
+    const blockedList = this.blockedList;
+    let blocked = 0;
+    for (let i = 0; i < standingCount; i++) {
+      const r = standing[i];
+      const cell = cells[r];
       const wish = wanted === null ? -1 : wanted[r];
       if (wish >= 0) {
         const owner = wish === cell || nextStamp[wish] !== stamp ? -1 : nextOccupant[wish];
         if (owner < 0 || owner === r) status[r] = WaitStatus.Free;
         else {
           status[r] = WaitStatus.Blocked;
-          this.waitsOn[r * 4] = owner;
-          this.waitCount[r] = 1;
-          blocked++;
+          waitsOn[r * 4] = owner;
+          waitCount[r] = 1;
+          blockedList[blocked++] = r;
         }
         continue;
       }
       // Neighbours one step closer: clear bits of the field's ranking (-1: the goal is cut off).
+      const goal = goalSeen[r];
       let field = this.fieldGoal[r] === goal ? this.fieldOf[r] : null;
       let rank = field === null ? -2 : field.rankAround(cell);
       if (rank === -2) {
@@ -315,6 +398,7 @@ export class DeadlockDetector {
       }
       let closer = 0;
       let free = false;
+      let count = 0;
       for (let d = 0; d < 4 && rank >= 0; d++) {
         const n = neighbors[cell * 4 + d];
         if (n < 0 || (rank & (1 << d)) !== 0) continue;
@@ -325,19 +409,18 @@ export class DeadlockDetector {
           break;
         }
         let seen = false;
-        for (let k = 0; k < this.waitCount[r]; k++) if (this.waitsOn[r * 4 + k] === owner) seen = true;
-        if (!seen) this.waitsOn[r * 4 + this.waitCount[r]++] = owner;
+        for (let k = 0; k < count; k++) if (waitsOn[r * 4 + k] === owner) seen = true;
+        if (!seen) waitsOn[r * 4 + count++] = owner;
       }
-      if (free || closer === 0) {
-        status[r] = WaitStatus.Free;
-        this.waitCount[r] = 0;
-      } else {
+      if (free || closer === 0) status[r] = WaitStatus.Free;
+      else {
         status[r] = WaitStatus.Blocked;
-        blocked++;
+        waitCount[r] = count;
+        blockedList[blocked++] = r;
       }
     }
 
-    if (blocked > 0) this.classifyBlocked(tick, world);
+    if (blocked > 0) this.classifyBlocked(tick, world, blocked);
     else this.noneBlocked(tick);
 
     // One result object, refilled at every evaluation (the engine reads it at once).
@@ -354,40 +437,68 @@ export class DeadlockDetector {
   /**
    * Some robot is blocked: reverse the wait edges, search back from the sinks (robots in
    * service first, so a chain that reaches one is that station's queue; then moving and free
-   * robots: traffic), charge queue time to stations, and mark the rest stuck.
+   * robots: traffic), charge queue time to stations, and mark the rest stuck. Only the
+   * blocked robots (`blockedList`, ascending) and the robots they wait on are visited: a
+   * sink nobody waits on adds nothing to either search.
    */
-  private classifyBlocked(tick: number, world: World): void {
-    const robots = this.robots;
+  private classifyBlocked(tick: number, world: World, blocked: number): void {
     const status = this.status;
     const cells = world.robotCell;
-    const start = this.predecessorStart;
-    start.fill(0);
-    for (let r = 0; r < robots; r++) for (let k = 0; k < this.waitCount[r]; k++) start[this.waitsOn[r * 4 + k] + 1]++;
-    for (let r = 0; r < robots; r++) start[r + 1] += start[r];
-    const fill = this.bfs;
-    for (let r = 0; r < robots; r++) fill[r] = start[r];
-    for (let r = 0; r < robots; r++) for (let k = 0; k < this.waitCount[r]; k++) this.predecessors[fill[this.waitsOn[r * 4 + k]]++] = r;
-
+    const blockedList = this.blockedList;
+    const waitsOn = this.waitsOn;
+    const waitCount = this.waitCount;
     const reached = this.reached;
-    reached.fill(0);
     const queueStation = this.queueStation;
-    queueStation.fill(-1);
+    this.forgetBlocked();
+
+    // Reversed edges: per robot waited on, the robots waiting on it in ascending order
+    // (linked lists filled from the highest waiter down), and the robots waited on.
+    const head = this.predecessorHead;
+    const edgeRobot = this.edgeRobot;
+    const edgeNext = this.edgeNext;
+    const targets = this.targets;
+    let targetCount = 0;
+    let edges = 0;
+    for (let i = blocked - 1; i >= 0; i--) {
+      const r = blockedList[i];
+      for (let k = 0; k < waitCount[r]; k++) {
+        const x = waitsOn[r * 4 + k];
+        if (head[x] < 0) targets[targetCount++] = x;
+        edgeRobot[edges] = r;
+        edgeNext[edges] = head[x];
+        head[x] = edges++;
+      }
+    }
+    this.targetCount = targetCount;
+    // Sinks are searched from in robot order, as a pass over every robot would (insertion
+    // sort: a handful of robots, and no view allocated per call).
+    for (let i = 1; i < targetCount; i++) {
+      const x = targets[i];
+      let j = i - 1;
+      while (j >= 0 && targets[j] > x) {
+        targets[j + 1] = targets[j];
+        j--;
+      }
+      targets[j + 1] = x;
+    }
+    for (let i = 0; i < blocked; i++) reached[blockedList[i]] = 0;
+
     const queue = this.bfs;
     for (let pass = 0; pass < 2; pass++) {
-      let head = 0;
+      let first = 0;
       let tail = 0;
-      for (let r = 0; r < robots; r++) {
+      for (let i = 0; i < targetCount; i++) {
+        const r = targets[i];
         const s = status[r];
         const sink = pass === 0 ? s === WaitStatus.Handling : s === WaitStatus.Moving || s === WaitStatus.Free;
         if (!sink) continue;
-        reached[r] = 1;
         queueStation[r] = pass === 0 ? this.stationOf[cells[r]] : -1;
         queue[tail++] = r;
       }
-      while (head < tail) {
-        const x = queue[head++];
-        for (let i = start[x]; i < start[x + 1]; i++) {
-          const p = this.predecessors[i];
+      while (first < tail) {
+        const x = queue[first++];
+        for (let e = head[x]; e >= 0; e = edgeNext[e]) {
+          const p = edgeRobot[e];
           if (reached[p] || status[p] !== WaitStatus.Blocked) continue;
           reached[p] = 1;
           queueStation[p] = queueStation[x];
@@ -395,18 +506,16 @@ export class DeadlockDetector {
         }
       }
     }
+    // Only blocked robots keep a station mark.
+    for (let i = 0; i < targetCount; i++) if (status[targets[i]] !== WaitStatus.Blocked) queueStation[targets[i]] = -1;
+    for (let i = 0; i < blocked; i++) if (!reached[blockedList[i]]) queueStation[blockedList[i]] = -1;
 
     // Queue time per station (robots queued behind the robot in service there).
     for (const s of this.touchedStations) this.queuedNow[s] = 0;
     const touched = this.touchedSpare;
     touched.length = 0;
-    for (let r = 0; r < robots; r++) {
-      if (status[r] !== WaitStatus.Blocked) {
-        // Only blocked robots keep their station mark.
-        queueStation[r] = -1;
-        continue;
-      }
-      const s = reached[r] ? queueStation[r] : -1;
+    for (let i = 0; i < blocked; i++) {
+      const s = queueStation[blockedList[i]];
       if (s < 0) continue;
       if (this.queuedNow[s] === 0) touched.push(s);
       this.queuedNow[s]++;
@@ -416,57 +525,76 @@ export class DeadlockDetector {
     this.touchedSpare = this.touchedStations;
     this.touchedStations = touched;
 
-    if (this.onBehindFixed !== null) this.countBehindFixed(tick, world);
+    if (this.onBehindFixed !== null) this.countBehindFixed(tick, world, blocked);
 
-    // Stuck robots: blocked and reaching no sink.
+    // Stuck robots: blocked and reaching no sink. Only robots blocked at the last
+    // evaluation can have been stuck.
+    const stuckSince = this.stuckSince;
+    const previous = this.previousBlocked;
+    for (let i = 0; i < this.previousBlockedCount; i++) if (status[previous[i]] !== WaitStatus.Blocked) stuckSince[previous[i]] = -1;
     let stuckCount = 0;
-    for (let r = 0; r < robots; r++) {
-      const stuck = status[r] === WaitStatus.Blocked && !reached[r];
-      if (!stuck) this.stuckSince[r] = -1;
+    for (let i = 0; i < blocked; i++) {
+      const r = blockedList[i];
+      if (reached[r]) stuckSince[r] = -1;
       else {
         stuckCount++;
-        if (this.stuckSince[r] < 0) this.stuckSince[r] = tick;
+        if (stuckSince[r] < 0) stuckSince[r] = tick;
       }
     }
     this.stuckCount = stuckCount;
+    previous.set(blockedList.subarray(0, blocked));
+    this.previousBlockedCount = blocked;
+  }
+
+  /** Clears the reversed edges and station marks of the last classification. */
+  private forgetBlocked(): void {
+    const head = this.predecessorHead;
+    for (let i = 0; i < this.targetCount; i++) head[this.targets[i]] = -1;
+    this.targetCount = 0;
+    const queueStation = this.queueStation;
+    for (let i = 0; i < this.previousBlockedCount; i++) queueStation[this.previousBlocked[i]] = -1;
   }
 
   /**
    * Blocked robots that reach a sink (`reached`) but none through a sink other than a robot
    * fixed for long: a search back from the other sinks marks who can go on without them.
+   * Sinks nobody waits on reach nobody, so only the robots waited on are searched from.
    */
-  private countBehindFixed(tick: number, world: World): void {
-    const robots = this.robots;
+  private countBehindFixed(tick: number, world: World, blocked: number): void {
     const status = this.status;
+    const targets = this.targets;
+    const targetCount = this.targetCount;
     const longFixed = (r: number) => world.robotBroken[r] === 1 || world.robotPhase[r] === phaseCharging;
     let any = false;
-    for (let r = 0; r < robots && !any; r++) if (status[r] === WaitStatus.Handling && longFixed(r)) any = true;
+    for (let i = 0; i < targetCount && !any; i++) if (status[targets[i]] === WaitStatus.Handling && longFixed(targets[i])) any = true;
     let count = 0;
     if (any) {
-      if (this.reachedElse.length < robots) this.reachedElse = new Uint8Array(robots);
+      if (this.reachedElse.length < this.robots) this.reachedElse = new Uint8Array(this.robots);
       const other = this.reachedElse;
-      other.fill(0, 0, robots);
+      const blockedList = this.blockedList;
+      for (let i = 0; i < blocked; i++) other[blockedList[i]] = 0;
       const queue = this.bfs;
-      let head = 0;
+      let first = 0;
       let tail = 0;
-      for (let r = 0; r < robots; r++) {
+      for (let i = 0; i < targetCount; i++) {
+        const r = targets[i];
         const s = status[r];
-        if ((s === WaitStatus.Handling && !longFixed(r)) || s === WaitStatus.Moving || s === WaitStatus.Free) {
-          other[r] = 1;
-          queue[tail++] = r;
-        }
+        if ((s === WaitStatus.Handling && !longFixed(r)) || s === WaitStatus.Moving || s === WaitStatus.Free) queue[tail++] = r;
       }
-      const start = this.predecessorStart;
-      while (head < tail) {
-        const x = queue[head++];
-        for (let i = start[x]; i < start[x + 1]; i++) {
-          const p = this.predecessors[i];
+      const head = this.predecessorHead;
+      while (first < tail) {
+        const x = queue[first++];
+        for (let e = head[x]; e >= 0; e = this.edgeNext[e]) {
+          const p = this.edgeRobot[e];
           if (other[p] || status[p] !== WaitStatus.Blocked) continue;
           other[p] = 1;
           queue[tail++] = p;
         }
       }
-      for (let r = 0; r < robots; r++) if (status[r] === WaitStatus.Blocked && this.reached[r] && !other[r]) count++;
+      for (let i = 0; i < blocked; i++) {
+        const r = blockedList[i];
+        if (this.reached[r] && !other[r]) count++;
+      }
     }
     if (count !== this.behindFixedNow) {
       this.behindFixedNow = count;
@@ -489,7 +617,8 @@ export class DeadlockDetector {
       this.stuckSince.fill(-1);
       this.stuckCount = 0;
     }
-    this.queueStation.fill(-1);
+    this.forgetBlocked();
+    this.previousBlockedCount = 0;
   }
 
   /** Earliest tick at which a new episode could be found if nothing moves, or Infinity. */
@@ -600,8 +729,8 @@ export class DeadlockDetector {
           else continue;
           component[tail++] = y;
         }
-        for (let i = this.predecessorStart[x]; i < this.predecessorStart[x + 1]; i++) {
-          const p = this.predecessors[i];
+        for (let e = this.predecessorHead[x]; e >= 0; e = this.edgeNext[e]) {
+          const p = this.edgeRobot[e];
           if (this.episodeOf[p] >= 0 || !stuck(p)) continue;
           this.join(id, p, this.stuckSince[p]);
           component[tail++] = p;
