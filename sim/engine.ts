@@ -52,6 +52,10 @@ import { MoveDelays } from './move-delays.ts';
 // Read once: imported bindings are getters under the TypeScript loader (measured: 4-6% of a
 // token-passing run went to them), and these are read per robot per tick.
 const phaseIdle = Phase.Idle;
+const phaseToPickup = Phase.ToPickup;
+const phaseToDrop = Phase.ToDrop;
+const phaseToReturn = Phase.ToReturn;
+const phaseToCharger = Phase.ToCharger;
 const handlingPhase = isHandling;
 const loadedPhase = isLoaded;
 
@@ -343,8 +347,13 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     };
     deepenPool = (t: number): boolean => {
       if (poolDepth! >= rule.maxDepth || world.openTasks.length + heldTasks < poolDepth!) return false;
+      // world.mayTakeTask per robot, read from the arrays (this runs at every step of a capacity run).
+      const phases = world.robotPhase;
+      const robotTask = world.robotTask;
+      const broken = world.robotBroken;
+      const stopPending = world.robotStopPending;
       let idle = 0;
-      for (let r = 0; r < robots; r++) if (world.mayTakeTask(r)) idle++;
+      for (let r = 0; r < robots; r++) if (phases[r] === phaseIdle && robotTask[r] < 0 && broken[r] === 0 && stopPending[r] === 0) idle++;
       if (idle === 0) return false;
       poolDepth = Math.min(rule.maxDepth, poolDepth! + idle);
       topUp(t);
@@ -626,63 +635,83 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     metrics.addStill(from, to, handling, waiting, parked, busy, world.openTasks.length > 0 ? parked : 0);
   };
 
+  /** Robots that stand on their goal after a motion tick (ascending), arriving there. */
+  const atGoal = new Int32Array(robots);
   const executeMotion = (t: number): void => {
-    // Apply the moves decided at t-1; handling robots stay whatever the policy wrote.
+    // Apply the moves decided at t-1; handling robots stay whatever the policy wrote. One
+    // pass per robot: its move, its activity count, the occupancy, and whether it stands on
+    // its goal (world.goalOf read from the arrays); arrivals are carried out after the step
+    // is counted, in robot order (an arrival changes only its own robot).
     let loaded = 0;
     let empty = 0;
     let handling = 0;
     let waiting = 0;
     let parked = 0;
     let busy = 0;
+    let arriving = 0;
     const cells = world.robotCell;
     const occupant = world.occupant;
+    const phases = world.robotPhase;
+    const robotTask = world.robotTask;
+    const heldUntil = world.robotHeldUntil;
+    const turnUntil = world.robotTurnUntil;
+    const broken = world.robotBroken;
+    const charger = world.robotCharger;
+    const taskPickup = world.taskPickup;
+    const taskDrop = world.taskDrop;
+    const taskReturn = world.taskReturn;
+    const cellWaiting = metrics.cellWaitingTicks;
     for (let r = 0; r < robots; r++) {
-      const phase = world.robotPhase[r];
-      if (world.robotTask[r] >= 0) busy++;
+      const phase = phases[r];
+      const task = robotTask[r];
+      if (task >= 0) busy++;
       const from = cells[r];
+      let to = from;
       if (upkeepCategory !== null && upkeepCategory[r] !== UpkeepCategory.None) {
         // Counted by the upkeep's own recorder. Broken and charging robots stay where they
         // are (and so does a robot whose move is held back); robots going to (or waiting
         // for) a charger move as the policy says.
-        if (world.isFixed(r) || world.robotHeldUntil[r] >= t) continue;
-        const to = moves[r];
-        if (to === from) continue;
+        if (!world.isFixed(r) && heldUntil[r] < t) to = moves[r];
+      } else if (handlingPhase(phase)) {
+        handling++;
+      } else {
+        // A held-back move keeps the robot where it is, whatever the policy wrote (checked by tick: no call per robot).
+        if (heldUntil[r] < t) to = moves[r];
+        if (to === from) {
+          if (turnUntil[r] >= t) {
+            // Turning in place is travel (Groover's cycle time counts it in the travel term).
+            if (loadedPhase(phase)) loaded++;
+            else empty++;
+          } else if (phase === phaseIdle) parked++;
+          else {
+            waiting++;
+            cellWaiting[from]++;
+          }
+        } else if (loadedPhase(phase)) loaded++;
+        else empty++;
+      }
+      if (to !== from) {
         if (occupant[from] === r) occupant[from] = -1;
         cells[r] = to;
-        continue;
       }
-      if (handlingPhase(phase)) {
-        handling++;
-        continue;
-      }
-      // A held-back move keeps the robot where it is, whatever the policy wrote (checked by tick: no call per robot).
-      const held = world.robotHeldUntil[r] >= t;
-      const to = held ? from : moves[r];
-      if (to === from) {
-        if (world.robotTurnUntil[r] >= t) {
-          // Turning in place is travel (Groover's cycle time counts it in the travel term).
-          if (loadedPhase(phase)) loaded++;
-          else empty++;
-        } else if (phase === phaseIdle) parked++;
-        else {
-          waiting++;
-          metrics.cellWaitingTicks[from]++;
-        }
-        continue;
-      }
-      if (loadedPhase(phase)) loaded++;
-      else empty++;
-      if (occupant[from] === r) occupant[from] = -1;
-      cells[r] = to;
+      // Every robot marks its cell, so that the highest-numbered robot of a cell holds it (as a separate pass would).
+      occupant[to] = r;
+      const goal =
+        phase === phaseToPickup
+          ? taskPickup[task]
+          : phase === phaseToDrop
+            ? taskDrop[task]
+            : phase === phaseToReturn
+              ? taskReturn[task]
+              : phase === phaseToCharger
+                ? charger[r]
+                : -1;
+      if (goal >= 0 && to === goal && broken[r] === 0) atGoal[arriving++] = r;
     }
-    for (let r = 0; r < robots; r++) occupant[cells[r]] = r;
     validator.check(cells, t);
     metrics.addStep(t, loaded, empty, handling, waiting, parked, busy, world.openTasks.length > 0 ? parked : 0);
     motionTicks++;
-    for (let r = 0; r < robots; r++) {
-      const goal = world.goalOf(r);
-      if (goal >= 0 && cells[r] === goal && !world.robotBroken[r]) arrive(r, t);
-    }
+    for (let i = 0; i < arriving; i++) arrive(atGoal[i], t);
     hooks.afterMotion?.(t, world);
   };
 
@@ -759,7 +788,7 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     if (policyDirty) {
       policyDirty = false;
       upkeep?.beforePolicy(tick);
-      for (let r = 0; r < robots; r++) moves[r] = world.robotCell[r];
+      moves.set(world.robotCell);
       if (wantedCells) wantedCells.fill(-1);
       if (turnTicks > 0) turns.fill(-1);
       const planStart = performance.now();
@@ -768,8 +797,10 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
       planningMs += performance.now() - planStart;
       wantedFresh = wantedCells !== null;
       if (turnTicks > 0) applyTurns(tick);
+      const cells = world.robotCell;
+      const turnUntil = world.robotTurnUntil;
       for (let r = 0; r < robots; r++) {
-        if ((moves[r] !== world.robotCell[r] && !world.isFixed(r)) || world.robotTurnUntil[r] > tick) {
+        if ((moves[r] !== cells[r] && !world.isFixed(r)) || turnUntil[r] > tick) {
           anyMove = true;
           break;
         }

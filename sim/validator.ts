@@ -11,13 +11,11 @@
  * heading (sideways or backwards) or one made before the robot's turn ended, and any action
  * the engine refused (a turn while handling, moving or held back).
  */
-import { isLegalStep, type Layout } from './layout.ts';
+import type { Layout } from './layout.ts';
 import { stepHeading } from './headings.ts';
 
 const headingNames = ['north', 'east', 'south', 'west'];
 
-// Read once: imported bindings are getters under the TypeScript loader, and this runs per moving robot per tick.
-const legalStep = isLegalStep;
 
 export class CollisionValidator {
   vertexCollisions = 0;
@@ -72,27 +70,34 @@ export class CollisionValidator {
     const id = ++this.stampId;
     const previous = this.previous;
     const previousHolder = this.previousHolder;
-    for (let r = 0; r < cells.length; r++) {
+    const stamp = this.stamp;
+    const neighbors = this.layout.neighbors;
+    const robots = cells.length;
+    for (let r = 0; r < robots; r++) {
       const to = cells[r];
       const from = previous[r];
-      if (from !== to && !legalStep(this.layout, from, to)) {
-        this.illegalSteps++;
-        this.note(`tick ${tick}: robot ${r} jumped from cell ${from} to ${to}`);
-      } else if (from !== to && this.heading !== null) {
-        const direction = stepHeading(this.layout, from, to);
-        if (direction !== this.heading[r]) {
+      if (from !== to) {
+        // A legal step goes to one of the four neighbours (layout.isLegalStep, read from the array).
+        const base = from * 4;
+        if (neighbors[base] !== to && neighbors[base + 1] !== to && neighbors[base + 2] !== to && neighbors[base + 3] !== to) {
           this.illegalSteps++;
-          this.note(`tick ${tick}: robot ${r} moved ${headingNames[direction]} from cell ${from} while facing ${headingNames[this.heading[r]]}`);
-        } else if (this.turnEnd![r] >= tick) {
-          this.illegalSteps++;
-          this.note(`tick ${tick}: robot ${r} moved from cell ${from} before its turn ended (tick ${this.turnEnd![r]})`);
+          this.note(`tick ${tick}: robot ${r} jumped from cell ${from} to ${to}`);
+        } else if (this.heading !== null) {
+          const direction = stepHeading(this.layout, from, to);
+          if (direction !== this.heading[r]) {
+            this.illegalSteps++;
+            this.note(`tick ${tick}: robot ${r} moved ${headingNames[direction]} from cell ${from} while facing ${headingNames[this.heading[r]]}`);
+          } else if (this.turnEnd![r] >= tick) {
+            this.illegalSteps++;
+            this.note(`tick ${tick}: robot ${r} moved from cell ${from} before its turn ended (tick ${this.turnEnd![r]})`);
+          }
         }
       }
-      if (this.stamp[to] === id) {
+      if (stamp[to] === id) {
         this.vertexCollisions++;
         this.note(`tick ${tick}: robots ${this.stampHolder[to]} and ${r} in cell ${to}`);
       } else {
-        this.stamp[to] = id;
+        stamp[to] = id;
         this.stampHolder[to] = r;
       }
       if (from !== to) {
@@ -104,12 +109,15 @@ export class CollisionValidator {
         }
       }
     }
-    for (let r = 0; r < cells.length; r++) {
-      if (previousHolder[previous[r]] === r) previousHolder[previous[r]] = -1;
-    }
-    for (let r = 0; r < cells.length; r++) {
-      previous[r] = cells[r];
-      previousHolder[cells[r]] = r;
+    // The new positions become the previous ones: a robot that left a cell it held frees it,
+    // and every robot marks its cell (in robot order, so the highest-numbered robot of a cell
+    // holds it, as a pass that first frees every cell and then marks them would leave it).
+    for (let r = 0; r < robots; r++) {
+      const to = cells[r];
+      const from = previous[r];
+      if (from !== to && previousHolder[from] === r) previousHolder[from] = -1;
+      previous[r] = to;
+      previousHolder[to] = r;
     }
   }
 
