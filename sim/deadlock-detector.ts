@@ -101,9 +101,8 @@ export interface EvaluationResult {
 
 export class DeadlockDetector {
   readonly status: Uint8Array;
-  /** Column and row of every cell (no division per robot per tick). */
-  private readonly cellX: Int32Array;
-  private readonly cellY: Int32Array;
+  /** Column and row of every cell, side by side (no division per robot per tick, one line per lookup). */
+  private readonly cellXY: Int32Array;
   /** Station (index into the station list) whose queue the robot stands in, or -1. */
   readonly queueStation: Int32Array;
   readonly episodes: DetectorEpisode[] = [];
@@ -144,8 +143,12 @@ export class DeadlockDetector {
   private previousBlockedCount = 0;
   private readonly reached: Uint8Array;
   private readonly bfs: Int32Array;
-  private readonly nextOccupant: Int32Array;
-  private readonly nextStamp: Int32Array;
+  /**
+   * Per cell, side by side: the stamp of the last evaluation that found a robot there at
+   * tick + 1, and that robot. The detector runs right after the policy's step has filled the
+   * caches with its own data, so what one robot reads about a cell is kept on one line.
+   */
+  private readonly nextCell: Int32Array;
   private stamp = 0;
   private readonly queuedNow: Int32Array;
   private touchedStations: number[] = [];
@@ -181,11 +184,10 @@ export class DeadlockDetector {
   ) {
     this.robots = robots;
     this.status = new Uint8Array(robots);
-    this.cellX = new Int32Array(layout.cellCount);
-    this.cellY = new Int32Array(layout.cellCount);
+    this.cellXY = new Int32Array(layout.cellCount * 2);
     for (let c = 0; c < layout.cellCount; c++) {
-      this.cellX[c] = c % layout.width;
-      this.cellY[c] = (c - this.cellX[c]) / layout.width;
+      this.cellXY[c * 2] = c % layout.width;
+      this.cellXY[c * 2 + 1] = Math.floor(c / layout.width);
     }
     this.queueStation = new Int32Array(robots).fill(-1);
     this.lastProgress = new Int32Array(robots);
@@ -214,8 +216,7 @@ export class DeadlockDetector {
     this.previousBlocked = new Int32Array(robots);
     this.reached = new Uint8Array(robots);
     this.bfs = new Int32Array(robots);
-    this.nextOccupant = new Int32Array(layout.cellCount);
-    this.nextStamp = new Int32Array(layout.cellCount);
+    this.nextCell = new Int32Array(layout.cellCount * 2);
     this.queuedNow = new Int32Array(stationCount);
     this.lastServed = new Int32Array(layout.cellCount).fill(-1);
   }
@@ -273,8 +274,7 @@ export class DeadlockDetector {
     const boxMaxX = this.boxMaxX;
     const boxMinY = this.boxMinY;
     const boxMaxY = this.boxMaxY;
-    const cellX = this.cellX;
-    const cellY = this.cellY;
+    const cellXY = this.cellXY;
     const goalSeen = this.goalSeen;
     const lastProgress = this.lastProgress;
     const episodeOf = this.episodeOf;
@@ -282,8 +282,7 @@ export class DeadlockDetector {
     const goalProgress = this.goalProgress;
     const deadlockTicks = this.deadlockTicks;
     const stamp = ++this.stamp;
-    const nextStamp = this.nextStamp;
-    const nextOccupant = this.nextOccupant;
+    const nextCell = this.nextCell;
     const standing = this.standing;
     let standingCount = 0;
     let idle = 0;
@@ -302,8 +301,8 @@ export class DeadlockDetector {
       const fixed =
         phase === phaseHandlingPickup || phase === phaseHandlingDrop || phase === phaseHandlingReturn || phase === phaseCharging || broken[r] === 1 || turnUntil[r] > now || heldUntil[r] > now;
       const to = fixed ? cell : next[r];
-      nextStamp[to] = stamp;
-      nextOccupant[to] = r;
+      nextCell[to * 2] = stamp;
+      nextCell[to * 2 + 1] = r;
 
       const before = lastCell[r];
       const moved = before >= 0 && before !== cell;
@@ -311,8 +310,8 @@ export class DeadlockDetector {
       // The box of cells since the last progress changes only when the robot moved (or starts afresh).
       if (moved || boxMinX[r] < 0) {
         if (moved) movesSinceProgress[r]++;
-        const x = cellX[cell];
-        const y = cellY[cell];
+        const x = cellXY[cell * 2];
+        const y = cellXY[cell * 2 + 1];
         if (boxMinX[r] < 0) {
           boxMinX[r] = boxMaxX[r] = x;
           boxMinY[r] = boxMaxY[r] = y;
@@ -336,12 +335,12 @@ export class DeadlockDetector {
       if (goal !== goalSeen[r]) {
         goalSeen[r] = goal;
         this.progress(r, tick);
-        if (goal >= 0) goalProgress.observe(r, goal, cell); // starts following the new goal
+        if (goal >= 0) goalProgress.observe(r, goal, cell, cellXY[cell * 2], cellXY[cell * 2 + 1]); // starts following the new goal
       } else if (goal < 0 || broken[r] === 1) {
         // No goal (idle, handling, charging) or broken down: nothing to progress towards; keep the clock fresh.
         lastProgress[r] = tick;
         movesSinceProgress[r] = 0;
-      } else if (moved && goalProgress.observe(r, goal, cell)) {
+      } else if (moved && goalProgress.observe(r, goal, cell, cellXY[cell * 2], cellXY[cell * 2 + 1])) {
         this.progress(r, tick);
       }
 
@@ -376,7 +375,7 @@ export class DeadlockDetector {
       const cell = cells[r];
       const wish = wanted === null ? -1 : wanted[r];
       if (wish >= 0) {
-        const owner = wish === cell || nextStamp[wish] !== stamp ? -1 : nextOccupant[wish];
+        const owner = wish === cell || nextCell[wish * 2] !== stamp ? -1 : nextCell[wish * 2 + 1];
         if (owner < 0 || owner === r) status[r] = WaitStatus.Free;
         else {
           status[r] = WaitStatus.Blocked;
@@ -403,7 +402,7 @@ export class DeadlockDetector {
         const n = neighbors[cell * 4 + d];
         if (n < 0 || (rank & (1 << d)) !== 0) continue;
         closer++;
-        const owner = nextStamp[n] === stamp ? nextOccupant[n] : -1;
+        const owner = nextCell[n * 2] === stamp ? nextCell[n * 2 + 1] : -1;
         if (owner < 0 || owner === r) {
           free = true;
           break;

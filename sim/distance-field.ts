@@ -133,6 +133,14 @@ export class DistanceField {
     return this.values[(y + 1) * (this.width + 2) + x + 1];
   }
 
+  /** valueAt for the cell at column x, row y of the layout (for callers that have them at hand). */
+  valueAtXY(layoutX: number, layoutY: number): number {
+    const x = layoutX - this.x0;
+    const y = layoutY - this.y0;
+    if (x < 0 || y < 0 || x >= this.width || y >= this.height) return -1;
+    return this.values[(y + 1) * (this.width + 2) + x + 1];
+  }
+
   /** The distance modulo 4 of a covered cell (tests compare it with a full table). */
   mod4(cell: number): number {
     return this.values[this.index(cell)] & 3;

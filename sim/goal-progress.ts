@@ -44,26 +44,30 @@ export class GoalProgress {
     this.goal[robot] = -1;
   }
 
-  /** True when `cell` is closer to `goal` than any cell the robot stood on since it got the goal. */
-  observe(robot: number, goal: number, cell: number): boolean {
+  /**
+   * True when `cell` (column x, row y) is closer to `goal` than any cell the robot stood on
+   * since it got the goal. A caller that has the column and row at hand passes them (the
+   * deadlock detector: one lookup per moving robot per tick, not two).
+   */
+  observe(robot: number, goal: number, cell: number, x = cell % this.fields.layout.width, y = Math.floor(cell / this.fields.layout.width)): boolean {
     if (this.goal[robot] !== goal) {
       const field = this.fields.to(goal, cell);
       this.goal[robot] = goal;
       this.field[robot] = field;
       this.cell[robot] = cell;
-      this.value[robot] = field.valueAt(cell);
+      this.value[robot] = field.valueAtXY(x, y);
       this.relative[robot] = 0;
       this.best[robot] = 0;
       return (this.value[robot] & reachedBit) !== 0;
     }
     if (this.cell[robot] === cell) return false;
     this.cell[robot] = cell;
-    let value = this.field[robot]!.valueAt(cell);
+    let value = this.field[robot]!.valueAtXY(x, y);
     // The window keeps what it covered when it grows, so the previous cell stays covered.
     if (value < 0) {
       const field = this.fields.to(goal, cell);
       this.field[robot] = field;
-      value = field.valueAt(cell);
+      value = field.valueAtXY(x, y);
     }
     const before = this.value[robot];
     this.value[robot] = value;
