@@ -149,6 +149,8 @@ export class DeadlockDetector {
    * caches with its own data, so what one robot reads about a cell is kept on one line.
    */
   private readonly nextCell: Int32Array;
+  /** The cell each robot takes at tick + 1 (its own when fixed). */
+  private readonly nextOf: Int32Array;
   private stamp = 0;
   private readonly queuedNow: Int32Array;
   private touchedStations: number[] = [];
@@ -217,6 +219,7 @@ export class DeadlockDetector {
     this.reached = new Uint8Array(robots);
     this.bfs = new Int32Array(robots);
     this.nextCell = new Int32Array(layout.cellCount * 2);
+    this.nextOf = new Int32Array(robots);
     this.queuedNow = new Int32Array(stationCount);
     this.lastServed = new Int32Array(layout.cellCount).fill(-1);
   }
@@ -282,7 +285,10 @@ export class DeadlockDetector {
     const goalProgress = this.goalProgress;
     const deadlockTicks = this.deadlockTicks;
     const stamp = ++this.stamp;
-    const nextCell = this.nextCell;
+    const nextOf = this.nextOf;
+    // Turns and held-back moves exist only when the scenario has them (their arrays stay -1 otherwise).
+    const turning = world.turnTicks > 0;
+    const holding = world.movesMayBeHeld;
     const standing = this.standing;
     let standingCount = 0;
     let idle = 0;
@@ -299,10 +305,15 @@ export class DeadlockDetector {
       const cell = cells[r];
       const phase = phases[r];
       const fixed =
-        phase === phaseHandlingPickup || phase === phaseHandlingDrop || phase === phaseHandlingReturn || phase === phaseCharging || broken[r] === 1 || turnUntil[r] > now || heldUntil[r] > now;
+        phase === phaseHandlingPickup ||
+        phase === phaseHandlingDrop ||
+        phase === phaseHandlingReturn ||
+        phase === phaseCharging ||
+        broken[r] === 1 ||
+        (turning && turnUntil[r] > now) ||
+        (holding && heldUntil[r] > now);
       const to = fixed ? cell : next[r];
-      nextCell[to * 2] = stamp;
-      nextCell[to * 2 + 1] = r;
+      nextOf[r] = to;
 
       const before = lastCell[r];
       const moved = before >= 0 && before !== cell;
@@ -370,12 +381,23 @@ export class DeadlockDetector {
     const waitsOn = this.waitsOn;
     const blockedList = this.blockedList;
     let blocked = 0;
+    // Who takes a cell at tick + 1: with a few robots standing, a scan of the robots' next
+    // cells for each cell they want (no write per robot into a per-cell table, whose lines
+    // the policy's step has evicted); with more, the per-cell table.
+    const useTable = standingCount > 4;
+    if (useTable) {
+      const nextCell = this.nextCell;
+      for (let r = 0; r < robots; r++) {
+        nextCell[nextOf[r] * 2] = stamp;
+        nextCell[nextOf[r] * 2 + 1] = r;
+      }
+    }
     for (let i = 0; i < standingCount; i++) {
       const r = standing[i];
       const cell = cells[r];
       const wish = wanted === null ? -1 : wanted[r];
       if (wish >= 0) {
-        const owner = wish === cell || nextCell[wish * 2] !== stamp ? -1 : nextCell[wish * 2 + 1];
+        const owner = wish === cell ? -1 : this.ownerAt(wish, stamp, useTable);
         if (owner < 0 || owner === r) status[r] = WaitStatus.Free;
         else {
           status[r] = WaitStatus.Blocked;
@@ -402,7 +424,7 @@ export class DeadlockDetector {
         const n = neighbors[cell * 4 + d];
         if (n < 0 || (rank & (1 << d)) !== 0) continue;
         closer++;
-        const owner = nextCell[n * 2] === stamp ? nextCell[n * 2 + 1] : -1;
+        const owner = this.ownerAt(n, stamp, useTable);
         if (owner < 0 || owner === r) {
           free = true;
           break;
@@ -431,6 +453,14 @@ export class DeadlockDetector {
     if (candidates.length > 0) this.findLivelocks(tick, world, clearable);
     this.findGridlock(tick, world, delivered, idle);
     return result;
+  }
+
+  /** The robot that takes `cell` at tick + 1 (the highest-numbered if several do), or -1. */
+  private ownerAt(cell: number, stamp: number, useTable: boolean): number {
+    if (useTable) return this.nextCell[cell * 2] === stamp ? this.nextCell[cell * 2 + 1] : -1;
+    const nextOf = this.nextOf;
+    for (let r = this.robots - 1; r >= 0; r--) if (nextOf[r] === cell) return r;
+    return -1;
   }
 
   /**
