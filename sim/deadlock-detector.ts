@@ -158,7 +158,8 @@ export class DeadlockDetector {
   private touchedSpare: number[] = [];
   /** Per cell: the last tick a robot was in service there (handling ended or still going on). */
   private readonly lastServed: Int32Array;
-  private readonly livelockCandidates: number[] = [];
+  /** Robots that made no progress for deadlockTicks at this evaluation (a prefix of the array). */
+  private readonly livelockCandidates: Int32Array;
   private readonly result: EvaluationResult = { clearable: [] };
   /** Robots stuck (in a closed set) at the last evaluation, and robots in an episode now. */
   private stuckCount = 0;
@@ -220,6 +221,7 @@ export class DeadlockDetector {
     this.bfs = new Int32Array(robots);
     this.nextCell = new Int32Array(layout.cellCount * 2);
     this.nextOf = new Int32Array(robots);
+    this.livelockCandidates = new Int32Array(robots);
     this.queuedNow = new Int32Array(stationCount);
     this.lastServed = new Int32Array(layout.cellCount).fill(-1);
   }
@@ -293,7 +295,7 @@ export class DeadlockDetector {
     let standingCount = 0;
     let idle = 0;
     const candidates = this.livelockCandidates;
-    candidates.length = 0;
+    let candidateCount = 0;
 
     // One pass over the robots, reading the world's arrays (world.isFixed, goalOf and
     // mayTakeTask inlined: this runs per robot per tick): the cell each takes at tick + 1,
@@ -352,7 +354,11 @@ export class DeadlockDetector {
         lastProgress[r] = tick;
         movesSinceProgress[r] = 0;
       } else if (moved && goalProgress.observe(r, goal, cell, cellXY[cell * 2], cellXY[cell * 2 + 1])) {
-        this.progress(r, tick);
+        // this.progress(r, tick), written out: most moving robots progress at every step.
+        lastProgress[r] = tick;
+        movesSinceProgress[r] = 0;
+        boxMinX[r] = -1;
+        if (episodeOf[r] >= 0) this.leave(r, tick, false);
       }
 
       waitCount[r] = 0;
@@ -362,7 +368,7 @@ export class DeadlockDetector {
         status[r] = WaitStatus.Handling;
         continue;
       }
-      if (goal >= 0 && episodeOf[r] < 0 && tick - lastProgress[r] >= deadlockTicks) candidates.push(r);
+      if (goal >= 0 && episodeOf[r] < 0 && tick - lastProgress[r] >= deadlockTicks) candidates[candidateCount++] = r;
       if (to !== cell) {
         status[r] = WaitStatus.Moving;
         continue;
@@ -450,7 +456,7 @@ export class DeadlockDetector {
     clearable.length = 0;
     if (this.members > 0) this.membersLeave(tick, world);
     if (this.stuckCount > 0) this.findDeadlocks(tick, world, clearable);
-    if (candidates.length > 0) this.findLivelocks(tick, world, clearable);
+    if (candidateCount > 0) this.findLivelocks(tick, world, clearable, candidateCount);
     this.findGridlock(tick, world, delivered, idle);
     return result;
   }
@@ -789,9 +795,10 @@ export class DeadlockDetector {
     return -1;
   }
 
-  private findLivelocks(tick: number, world: World, clearable: number[]): void {
+  private findLivelocks(tick: number, world: World, clearable: number[], candidates: number): void {
     const neighbors = this.layout.neighbors;
-    for (const r of this.livelockCandidates) {
+    for (let i = 0; i < candidates; i++) {
+      const r = this.livelockCandidates[i];
       if (this.episodeOf[r] >= 0 || this.stuckSince[r] >= 0 || world.goalOf(r) < 0) continue;
       const since = this.lastProgress[r];
       const elapsed = tick - since;
