@@ -489,3 +489,69 @@ describe('CollisionValidator (Stern et al., SoCS 2019 definitions)', () => {
     expect(validator.illegalSteps).toBe(1);
   });
 });
+
+describe('CollisionValidator on random steps, against the definitions counted pair by pair (Stern et al., SoCS 2019)', () => {
+  // A 6 x 4 floor with two pillars, so that some jumps land on blocked cells.
+  const layout = parseLayout(`
+########
+#......#
+#..#...#
+#...#..#
+#......#
+########`);
+  const floor = Array.from(layout.floorCells);
+  const width = layout.width;
+  const adjacent = (a: number, b: number) => layout.passable[b] === 1 && Math.abs((a % width) - (b % width)) + Math.abs(Math.floor(a / width) - Math.floor(b / width)) === 1;
+
+  it('counts every illegal step, vertex and swap collision of 2,000 short random sequences exactly', () => {
+    const random = seedrandom('validator-property');
+    let clean = 0;
+    let troubled = 0;
+    for (let sequence = 0; sequence < 2000; sequence++) {
+      const robots = 3 + Math.floor(random() * 6);
+      // Distinct starting cells.
+      const shuffled = [...floor].sort(() => random() - 0.5);
+      let cells = Int32Array.from(shuffled.slice(0, robots));
+      const validator = new CollisionValidator(layout, cells);
+      const expected = { illegal: 0, vertex: 0, swap: 0 };
+      // Each sequence ends after its first vertex collision (a cell with two robots has no
+      // single holder, and later steps from it are outside what the definitions settle).
+      for (let tick = 1; tick <= 30; tick++) {
+        const next = Int32Array.from(cells);
+        for (let r = 0; r < robots; r++) {
+          const roll = random();
+          if (roll < 0.3) continue; // stays
+          if (roll < 0.985) {
+            const options = floor.filter((c) => adjacent(cells[r], c));
+            next[r] = options[Math.floor(random() * options.length)];
+          } else next[r] = floor[Math.floor(random() * floor.length)]; // a jump (sometimes to a neighbour)
+        }
+        // Planned stepping often avoids collisions: undo most moves into a cell someone else takes.
+        for (let r = 0; r < robots; r++) {
+          for (let k = 0; k < robots; k++) if (k !== r && next[k] === next[r] && random() < 0.9) next[r] = cells[r];
+        }
+        let illegal = 0;
+        let vertex = 0;
+        let swap = 0;
+        for (let r = 0; r < robots; r++) if (next[r] !== cells[r] && !adjacent(cells[r], next[r])) illegal++;
+        const perCell = new Map<number, number>();
+        for (let r = 0; r < robots; r++) perCell.set(next[r], (perCell.get(next[r]) ?? 0) + 1);
+        for (const n of perCell.values()) vertex += n - 1;
+        for (let a = 0; a < robots; a++) for (let b = a + 1; b < robots; b++) if (cells[a] !== next[a] && cells[a] === next[b] && cells[b] === next[a]) swap++;
+        validator.check(next, tick);
+        expected.illegal += illegal;
+        expected.vertex += vertex;
+        expected.swap += swap;
+        if (illegal + vertex + swap > 0) troubled++;
+        else clean++;
+        expect({ illegal: validator.illegalSteps, vertex: validator.vertexCollisions, swap: validator.swapCollisions }).toEqual(expected);
+        cells = next;
+        if (vertex > 0) break;
+      }
+      if (expected.illegal + expected.vertex + expected.swap > 0) expect(validator.examples.length).toBeGreaterThan(0);
+    }
+    // Both kinds of tick were exercised many times.
+    expect(clean).toBeGreaterThan(10000);
+    expect(troubled).toBeGreaterThan(500);
+  });
+});
