@@ -453,7 +453,8 @@ export class DeadlockDetector {
     // One result object, refilled at every evaluation (the engine reads it at once).
     const result = this.result;
     const clearable = result.clearable;
-    clearable.length = 0;
+    // Setting an array's length calls into the runtime: only when there is something to drop.
+    if (clearable.length > 0) clearable.length = 0;
     if (this.members > 0) this.membersLeave(tick, world);
     if (this.stuckCount > 0) this.findDeadlocks(tick, world, clearable);
     if (candidateCount > 0) this.findLivelocks(tick, world, clearable, candidateCount);
@@ -548,7 +549,7 @@ export class DeadlockDetector {
     // Queue time per station (robots queued behind the robot in service there).
     for (const s of this.touchedStations) this.queuedNow[s] = 0;
     const touched = this.touchedSpare;
-    touched.length = 0;
+    if (touched.length > 0) touched.length = 0;
     for (let i = 0; i < blocked; i++) {
       const s = queueStation[blockedList[i]];
       if (s < 0) continue;
@@ -647,7 +648,7 @@ export class DeadlockDetector {
       this.queuedNow[s] = 0;
       this.onQueue(s, tick, 0);
     }
-    this.touchedStations.length = 0;
+    if (this.touchedStations.length > 0) this.touchedStations.length = 0;
     if (this.stuckCount > 0) {
       this.stuckSince.fill(-1);
       this.stuckCount = 0;

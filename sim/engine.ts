@@ -661,6 +661,9 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     const taskDrop = world.taskDrop;
     const taskReturn = world.taskReturn;
     const cellWaiting = metrics.cellWaitingTicks;
+    // Hold and turn clocks exist only with delays and turning (their arrays stay -1 otherwise).
+    const holding = moveDelays !== null;
+    const turning = turnTicks > 0;
     for (let r = 0; r < robots; r++) {
       const phase = phases[r];
       const task = robotTask[r];
@@ -671,14 +674,14 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
         // Counted by the upkeep's own recorder. Broken and charging robots stay where they
         // are (and so does a robot whose move is held back); robots going to (or waiting
         // for) a charger move as the policy says.
-        if (!world.isFixed(r) && heldUntil[r] < t) to = moves[r];
+        if (!world.isFixed(r) && (!holding || heldUntil[r] < t)) to = moves[r];
       } else if (handlingPhase(phase)) {
         handling++;
       } else {
         // A held-back move keeps the robot where it is, whatever the policy wrote (checked by tick: no call per robot).
-        if (heldUntil[r] < t) to = moves[r];
+        if (!holding || heldUntil[r] < t) to = moves[r];
         if (to === from) {
-          if (turnUntil[r] >= t) {
+          if (turning && turnUntil[r] >= t) {
             // Turning in place is travel (Groover's cycle time counts it in the travel term).
             if (loadedPhase(phase)) loaded++;
             else empty++;

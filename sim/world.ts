@@ -92,9 +92,9 @@ export class World {
    * heading being turned to while a turn lasts. Kept only when `turnTicks` > 0.
    */
   readonly robotHeading: Uint8Array;
-  /** Tick at which the robot's latest turn ends: it turns while the current tick is earlier, and may move from that tick to the next. */
+  /** Tick at which the robot's latest turn ends: it turns while the current tick is earlier, and may move from that tick to the next. Set only when `turnTicks` > 0 (-1 otherwise; hot loops skip it then). */
   readonly robotTurnUntil: Int32Array;
-  /** Tick until which a held-back move (faults.delays) keeps the robot on its cell; it may move from that tick to the next. */
+  /** Tick until which a held-back move (faults.delays) keeps the robot on its cell; it may move from that tick to the next. Set only when `movesMayBeHeld` (-1 otherwise; hot loops skip it then). */
   readonly robotHeldUntil: Int32Array;
   /** Ticks of a quarter turn in place; 0 when robots turn in no time (no headings). Set by the engine. */
   turnTicks = 0;
