@@ -507,15 +507,18 @@ export class DeadlockDetector {
     }
     this.targetCount = targetCount;
     // Sinks are searched from in robot order, as a pass over every robot would (insertion
-    // sort: a handful of robots, and no view allocated per call).
-    for (let i = 1; i < targetCount; i++) {
-      const x = targets[i];
-      let j = i - 1;
-      while (j >= 0 && targets[j] > x) {
-        targets[j + 1] = targets[j];
-        j--;
+    // sort for a handful of robots, with no view allocated per call; the library sort for more).
+    if (targetCount > 16) targets.subarray(0, targetCount).sort();
+    else {
+      for (let i = 1; i < targetCount; i++) {
+        const x = targets[i];
+        let j = i - 1;
+        while (j >= 0 && targets[j] > x) {
+          targets[j + 1] = targets[j];
+          j--;
+        }
+        targets[j + 1] = x;
       }
-      targets[j + 1] = x;
     }
     for (let i = 0; i < blocked; i++) reached[blockedList[i]] = 0;
 
