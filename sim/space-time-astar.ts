@@ -73,6 +73,17 @@
  * Start: the robot stands on `start` from `startTick`; a robot still turning or held back
  * (`readyTick` > startTick) can act only from `readyTick`, and the start cell's interval
  * must last until then.
+ *
+ * Deadline (`deadline`: only an arrival before it is of use, as for token passing's swap
+ * probe, which asks whether a robot reaches a pickup before the robot assigned to it): the
+ * search stops with no path once the least key in the heap has f >= deadline. f never
+ * decreases from a state to its successors (the heuristic is consistent and `ready` is
+ * non-decreasing) and the goal's key is its arrival, so from then on every goal state the
+ * search could still reach arrives at the deadline or later. Before that the pops are those
+ * of the search without a deadline, one for one, so an earlier arrival is found with the
+ * same path, and the expansion limit ends no search that it would not have ended. A probe
+ * that cannot arrive in time then costs the states with f < deadline instead of every state
+ * up to the earliest arrival (on the demo hall at 200 robots most probes are such).
  */
 import type { Layout } from './layout.ts';
 import { unreachable } from './distance-table.ts';
@@ -94,6 +105,12 @@ export interface SearchRequest {
   startHeading?: number;
   /** First tick at which the robot can turn or move (after a turn or hold in progress). Default startTick. */
   readyTick?: number;
+  /**
+   * An arrival at or after this tick is of no use to the caller: the search then fails
+   * (returns null, -1) as soon as it has proved that it cannot arrive earlier. An arrival
+   * before it is found exactly as without a deadline, path for path. Default: none.
+   */
+  deadline?: number;
 }
 
 const never = foreverTick;
@@ -165,6 +182,8 @@ export class SpaceTimeAStar {
   private walkId = 0;
   /** Searches that the reachability pass ended. */
   unreachableSkips = 0;
+  /** Searches ended by their deadline (no arrival before it). */
+  deadlineStops = 0;
   /** Breadth-first labelling passes run for the reachability check. */
   reachabilityPasses = 0;
   expansions = 0;
@@ -214,11 +233,13 @@ export class SpaceTimeAStar {
     const headings = this.headings;
     const startHeading = headings === 4 ? (request.startHeading ?? 0) : 0;
     const readyTick = Math.max(startTick, request.readyTick ?? startTick);
+    const deadline = request.deadline ?? never;
     this.lastHeading = startHeading;
     if (heuristic[start] >= unreachable) return -1;
     // A goal another robot rests on forever can never satisfy a rest; fail without searching.
     if (restForever && table.endRobot[goal] >= 0 && table.endRobot[goal] !== robot) return -1;
     if (start === goal) {
+      if (startTick >= deadline) return this.deadlineEnd(0);
       const holds = restForever ? table.isFreeFrom(goal, startTick, robot) : table.isFreeDuring(goal, startTick, startTick + holdTicks, robot);
       if (!holds) return -1;
       this.path[0] = start;
@@ -242,6 +263,8 @@ export class SpaceTimeAStar {
     this.intervalsUsed = 0;
     if (!this.goalWindows(goal, startTick + 1, holdTicks, restForever)) return -1;
     if (this.freePathFirst && headings === 1 && readyTick === startTick) {
+      // The walk's path arrives at startTick + dist, the search's own answer when it finds one.
+      if (startTick + heuristic[start] >= deadline) return this.deadlineEnd(0);
       const free = this.freeShortestPath(start);
       if (free >= 0) {
         // As the search below would have done on passing the reachability pre-check.
@@ -281,12 +304,15 @@ export class SpaceTimeAStar {
 
     const neighbors = this.layout.neighbors;
     let expanded = 0;
+    // Keys are (f - startTick) x 2^20 - g with 0 <= g < 2^20: a key above this means f >= deadline.
+    const stopKey = deadline >= never ? Infinity : (deadline - startTick - 1) * 1048576;
     // A search on an open floor expands about as many states as its distance; past that, it
     // pays for the check once it has spent about what a labelling costs (about one expansion
     // per 32 floor cells), so neither a doomed search nor a needless check costs much more
     // than the other (the ski-rental rule).
     const lazyAfter = this.reachabilityAfter + heuristic[start] + (this.layout.floorCells.length >> 5);
     while (this.heapSize > 0) {
+      if (this.heapKey[0] > stopKey) return this.deadlineEnd(expanded);
       const node = this.heapPop();
       const cell = this.nodeCell[node];
       const tick = this.nodeTick[node];
@@ -637,6 +663,13 @@ export class SpaceTimeAStar {
       }
     }
     return false;
+  }
+
+  /** Ends a search that cannot arrive before its deadline. */
+  private deadlineEnd(expanded: number): number {
+    this.expansions += expanded;
+    this.deadlineStops++;
+    return -1;
   }
 
   /** Ends a search proven unreachable before it began. */

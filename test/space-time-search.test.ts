@@ -502,3 +502,52 @@ describe('safe-interval search with headings against a space-time A* over (cell,
     expect(search.lastHeading).toBe(1);
   });
 });
+
+describe('safe-interval search with a deadline (property test, fast-check)', () => {
+  it('returns the search without deadline path for path when the reference arrival is before the deadline, else nothing, and stops doomed searches early', () => {
+    // The reference arrival is the plain space-time A* above (Silver 2005), sharing no code
+    // with sim/; the deadline is set around it, so both sides of "arrives in time" are hit.
+    let inTime = 0;
+    let late = 0;
+    let stoppedEarly = 0;
+    fc.assert(
+      fc.property(fc.integer({ min: 0, max: 10_000_000 }), fc.integer({ min: 0, max: 3 }), fc.integer({ min: -3, max: 2 }), (seed, turnTicks, offset) => {
+        const instance = randomInstance(seed);
+        fc.pre(instance !== null);
+        const inst = instance!;
+        const { layout, table } = productionFor(inst);
+        inst.horizon = table.horizon;
+        const model = new ReferenceReservations();
+        inst.others.forEach((p, r) => model.add(r, p.start, p.cells));
+        const lastReserved = Math.max(0, ...inst.others.map((p) => p.start + p.cells.length));
+        const { start, startTick, goal, holdTicks, restForever } = inst.query;
+        const startHeading = seed & 3;
+        const expected = turnTicks === 0 ? referenceArrival(inst, model, lastReserved) : referenceArrivalWithHeadings(inst, model, lastReserved, turnTicks, startHeading, startTick);
+        // Around the arrival when there is one, else anywhere after the start.
+        const deadline = expected === null ? startTick + 3 + offset : expected + 1 + offset;
+        const heuristic = distanceTable(layout, goal);
+        const plain = new SpaceTimeAStar(layout, table, 200_000, 16, turnTicks);
+        const bounded = new SpaceTimeAStar(layout, table, 200_000, 16, turnTicks);
+        const request = { robot: searcher, start, startTick, goal, heuristic, holdTicks, restForever, startHeading, readyTick: startTick };
+        const full = plain.search(request);
+        const cut = bounded.search({ ...request, deadline });
+        expect(full === null ? null : startTick + full.length - 1).toBe(expected);
+        if (expected !== null && expected < deadline) {
+          inTime++;
+          expect(cut === null ? null : Array.from(cut)).toEqual(Array.from(full!));
+          expect(bounded.lastHeading).toBe(plain.lastHeading);
+          expect(bounded.deadlineStops).toBe(0);
+        } else {
+          late++;
+          expect(cut).toBeNull();
+          if (bounded.expansions < plain.expansions) stoppedEarly++;
+        }
+        expect(bounded.expansions).toBeLessThanOrEqual(plain.expansions);
+      }),
+      { numRuns: Number(process.env.PROPERTY_RUNS ?? 600), seed: Number(process.env.PROPERTY_SEED ?? 20261201) },
+    );
+    expect(inTime).toBeGreaterThan(100);
+    expect(late).toBeGreaterThan(100);
+    expect(stoppedEarly).toBeGreaterThan(20);
+  });
+});

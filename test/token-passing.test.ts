@@ -4,7 +4,7 @@ import { makeScenario } from './helpers.ts';
 import { runReplications } from '../experiments/replications.ts';
 import { loadScenarioFile } from '../scenarios/load.ts';
 import { checkWellFormed, parseLayout } from '../sim/layout.ts';
-import type { TraceTask } from '../sim/model.ts';
+import type { DemandSpec, TraceTask } from '../sim/model.ts';
 import { TokenPassing } from '../policies/token-passing/token-passing.ts';
 
 // One-lane corridor (row 2) with one side pocket at (5,3). Robot 0 starts on H(1,1), robot 1
@@ -149,4 +149,51 @@ describe('token passing: fruitless token requests are skipped without changing a
     // Many requests of the full run found nothing (the share grows with the run: about 90% over 8 h).
     expect(skipped.tokenRequests).toBeLessThan(0.75 * full.tokenRequests);
   });
+});
+
+describe('token passing with swaps: fruitless swap probes are skipped or cut short without changing a choice', () => {
+  // Ma et al., AAMAS 2017 (TPTS): a free robot takes another's task only if it reaches the
+  // pickup earlier. The probe's shortcuts (the other robot stands on a stop of the task; the
+  // pickup leg searched with the other's pickup tick as deadline) must leave every swap, plan
+  // and figure as the full probes give them: only the search's own counters may differ.
+  const saturated = (file: string, robots: number, hours: number, mode: 'delivery' | 'round-trip', turnSeconds?: number) => {
+    const loaded = loadScenarioFile(file, { policy: 'token-passing-swaps', robots, hours, replications: 1 });
+    if (loaded.demand.kind === 'trace') throw new Error(`${file}: expected generated demand`);
+    const demand: DemandSpec = mode === 'delivery'
+      ? { kind: 'saturated', mode, pickups: { kind: 'uniform' }, drops: { kind: 'zipf', skew: 0.6 } }
+      : { kind: 'saturated', mode, pickups: loaded.demand.pickups, drops: loaded.demand.drops };
+    return { ...loaded, units: turnSeconds === undefined ? loaded.units : { ...loaded.units, turnSeconds }, demand };
+  };
+  const run = (scenario: ReturnType<typeof saturated>, skip: boolean) => {
+    TokenPassing.skipFruitlessProbes = skip;
+    try {
+      const [r] = runReplications(scenario);
+      const { timing: _timing, policyCounters, ...rest } = r;
+      const { searches, expansions, unreachableSkips: _u, swapProbesSkipped, deadlineStops, ...counters } = policyCounters;
+      return { rest, counters, searches, expansions, swapProbesSkipped, deadlineStops };
+    } finally {
+      TokenPassing.skipFruitlessProbes = true;
+    }
+  };
+  // With the fewest swaps each case makes (more tasks than robots on the goods-to-person floor: few robots are free to swap).
+  const cases: [string, ReturnType<typeof saturated>, number][] = [
+    ['demo hall, 100 robots, skewed drops', saturated('scenarios/demo-sortation.yaml', 100, 0.25, 'delivery'), 100],
+    ['demo hall, 60 forward-only robots (1 s quarter turns)', saturated('scenarios/demo-sortation.yaml', 60, 0.25, 'delivery', 1), 20],
+    ['goods-to-person floor, 60 robots, round trips', saturated('scenarios/demo-fulfillment.yaml', 60, 1, 'round-trip'), 10],
+  ];
+  for (const [name, scenario, swaps] of cases) {
+    it(`${name}: the same run with the shortcuts on and off, on fewer searches`, () => {
+      const cut = run(scenario, true);
+      const full = run(scenario, false);
+      expect(cut.rest.delivered).toBeGreaterThan(100);
+      expect(cut.counters.taskSwaps).toBeGreaterThanOrEqual(swaps);
+      expect(cut.rest).toEqual(full.rest);
+      expect(cut.counters).toEqual(full.counters);
+      expect(full.swapProbesSkipped).toBe(0);
+      expect(full.deadlineStops).toBe(0);
+      expect(cut.deadlineStops).toBeGreaterThan(0);
+      expect(cut.searches).toBeLessThanOrEqual(full.searches);
+      expect(cut.expansions).toBeLessThan(full.expansions);
+    });
+  }
 });

@@ -174,7 +174,9 @@ export function planRest(
 }
 
 /** One search request object, refilled for every search (the search reads it during the call only). */
-const request: SearchRequest = { robot: 0, start: 0, startTick: 0, goal: 0, heuristic: new Int32Array(0), holdTicks: 0, restForever: false, startHeading: 0, readyTick: 0 };
+const request: SearchRequest = { robot: 0, start: 0, startTick: 0, goal: 0, heuristic: new Int32Array(0), holdTicks: 0, restForever: false, startHeading: 0, readyTick: 0, deadline: Infinity };
+
+/** The request for one search (no deadline: a caller that wants one sets `deadline` on the returned object). */
 
 export function requestFor(
   robot: number,
@@ -196,6 +198,7 @@ export function requestFor(
   request.restForever = restForever;
   request.startHeading = startHeading;
   request.readyTick = readyTick;
+  request.deadline = Infinity;
   return request;
 }
 

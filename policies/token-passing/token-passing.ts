@@ -71,6 +71,8 @@ const swapRetryTicks = 8;
 export class TokenPassing implements Policy {
   /** Skip the requests `stillNothing` proves fruitless (same choices either way; off only to test that). */
   static skipFruitlessRequests = true;
+  /** Skip or cut short the swap probes that cannot end in a swap (`trySwap`; same choices either way; off only to test that). */
+  static skipFruitlessProbes = true;
   private readonly table: ReservationTable;
   private readonly planner: Planner;
   private readonly execution: PlanExecution;
@@ -135,6 +137,9 @@ export class TokenPassing implements Policy {
   private readonly isRestSpot: Uint8Array;
   private readonly spotBuffer = new Int32Array(3);
   private taskSwaps = 0;
+  /** Swap candidates whose pickup leg was probed, and those of them answered without a search (`probe`). */
+  private swapProbes = 0;
+  private swapProbesSkipped = 0;
   private requests = 0;
   private failedPlans = 0;
 
@@ -475,12 +480,7 @@ export class TokenPassing implements Policy {
       }
       table.rest(other, otherCell, tick);
       table.release(robot, tick);
-      const pickup = world.taskPickup[task];
-      const leg = this.planner.search.search(
-        requestFor(robot, cell, tick, pickup, distances.to(pickup), world.taskPickupTicks[task], false, world.robotHeading[robot], readyTickOf(world, robot, tick)),
-      );
-      const earlier = leg !== null && tick + leg.length - 1 < this.pickupTick[other];
-      const plan = earlier ? planTask(this.planner, robot, cell, tick, task) : null;
+      const plan = this.probe(robot, cell, tick, other, otherCell, task) ? planTask(this.planner, robot, cell, tick, task) : null;
       if (plan && plan.pickupTick < this.pickupTick[other]) {
         this.noteEnd(other, otherCell);
         world.unassign(other);
@@ -494,6 +494,36 @@ export class TokenPassing implements Policy {
       table.reserve(other, oldPath, oldStart, tick);
     }
     return -1;
+  }
+
+  /**
+   * The swap probe: true when robot r, planned from `cell` at `tick` against the table with
+   * the other robot stopped on `otherCell`, reaches the pickup of the other's task before
+   * the other would (its pickup leg alone, searched; the whole task is planned only then).
+   * Two exact shortcuts (`skipFruitlessProbes`), each proving that the answer, or the plan
+   * after it, is a failure, so the swap is not made either way:
+   *  - the other robot stands on a stop of the task (it has just delivered to the drop of
+   *    its new task, common under skewed drops): stopped there, it holds the cell from now on
+   *    for good, so the leg to that stop finds no arrival window (a handling stop) or fails
+   *    at once (a rest goal another robot rests on), and `planTask` returns null;
+   *  - the leg is searched with the other's pickup tick as its deadline: the search stops as
+   *    soon as it has proved it cannot arrive before it (sim/space-time-astar.ts), where the
+   *    full search would go on to find a later arrival that the probe rejects anyway.
+   */
+  private probe(robot: number, cell: number, tick: number, other: number, otherCell: number, task: number): boolean {
+    const { world, distances } = this.context;
+    const pickup = world.taskPickup[task];
+    const skip = TokenPassing.skipFruitlessProbes;
+    this.swapProbes++;
+    if (skip && (otherCell === pickup || otherCell === world.taskDrop[task] || otherCell === world.taskReturn[task])) {
+      this.swapProbesSkipped++;
+      return false;
+    }
+    const deadline = this.pickupTick[other];
+    const request = requestFor(robot, cell, tick, pickup, distances.to(pickup), world.taskPickupTicks[task], false, world.robotHeading[robot], readyTickOf(world, robot, tick));
+    if (skip) request.deadline = deadline;
+    const length = this.planner.search.find(request);
+    return length >= 0 && tick + length - 1 < deadline;
   }
 
   /**
@@ -532,6 +562,7 @@ export class TokenPassing implements Policy {
       unreachableSkips: this.planner.search.unreachableSkips,
       expansions: this.planner.search.expansions,
       taskSwaps: this.taskSwaps,
+      ...(this.swaps ? { swapProbes: this.swapProbes, swapProbesSkipped: this.swapProbesSkipped, deadlineStops: this.planner.search.deadlineStops } : {}),
       failedPlans: this.failedPlans,
       ...(this.execution.dependent ? { dependencyWaits: this.execution.dependencyWaits, dependencyWaitSeconds: this.execution.dependencyWaitTicks * this.context.tickSeconds } : {}),
     };
