@@ -470,6 +470,22 @@ export class TokenPassing implements Policy {
       const oldPath = table.paths[other]!;
       const oldStart = table.pathStart[other];
       const otherCell = world.robotCell[other];
+      if (TokenPassing.skipFruitlessProbes && this.standsOnStop(otherCell, task)) {
+        // Its probe cannot end in a swap (`probe`): leave the table as the tentative stop,
+        // the probe and the restore below would leave it, without them. `isFreeFrom` reads
+        // the same whether or not the other's own path is released (it ignores the robot
+        // it is asked for). Past that test this robot's path becomes a rest from now (the
+        // paths and rests are otherwise as they were); before it, only the revision moved,
+        // and it moves here too, so the robots it wakes (`wakeRevision`) are the same.
+        if (table.isFreeFrom(otherCell, tick, other)) {
+          this.swapProbes++;
+          this.swapProbesSkipped++;
+          table.rest(robot, cell, tick);
+        } else {
+          table.revision++;
+        }
+        continue;
+      }
       // Tentatively stop the other robot where it stands, then plan this one. It may stop
       // only where no other robot's reserved path or rest comes later (it could be crossing
       // the cell where another robot will end its path); otherwise no swap with it.
@@ -502,10 +518,8 @@ export class TokenPassing implements Policy {
    * the other would (its pickup leg alone, searched; the whole task is planned only then).
    * Two exact shortcuts (`skipFruitlessProbes`), each proving that the answer, or the plan
    * after it, is a failure, so the swap is not made either way:
-   *  - the other robot stands on a stop of the task (it has just delivered to the drop of
-   *    its new task, common under skewed drops): stopped there, it holds the cell from now on
-   *    for good, so the leg to that stop finds no arrival window (a handling stop) or fails
-   *    at once (a rest goal another robot rests on), and `planTask` returns null;
+   *  - the other robot stands on a stop of the task (`standsOnStop`, checked by `trySwap`
+   *    before it touches the table);
    *  - the leg is searched with the other's pickup tick as its deadline: the search stops as
    *    soon as it has proved it cannot arrive before it (sim/space-time-astar.ts), where the
    *    full search would go on to find a later arrival that the probe rejects anyway.
@@ -515,7 +529,7 @@ export class TokenPassing implements Policy {
     const pickup = world.taskPickup[task];
     const skip = TokenPassing.skipFruitlessProbes;
     this.swapProbes++;
-    if (skip && (otherCell === pickup || otherCell === world.taskDrop[task] || otherCell === world.taskReturn[task])) {
+    if (skip && this.standsOnStop(otherCell, task)) {
       this.swapProbesSkipped++;
       return false;
     }
@@ -524,6 +538,18 @@ export class TokenPassing implements Policy {
     if (skip) request.deadline = deadline;
     const length = this.planner.search.find(request);
     return length >= 0 && tick + length - 1 < deadline;
+  }
+
+  /**
+   * True when a robot on `otherCell`, stopped there for good, makes `planTask` fail for the
+   * task: the cell is one of its stops (under skewed drops a robot that has just delivered
+   * often takes a task to the same drop, and stands on it as the others probe). The leg to
+   * that stop then finds no arrival window (a handling stop: the cell is held from now on)
+   * or fails at once (the rest goal: another robot rests on it).
+   */
+  private standsOnStop(otherCell: number, task: number): boolean {
+    const world = this.context.world;
+    return otherCell === world.taskPickup[task] || otherCell === world.taskDrop[task] || otherCell === world.taskReturn[task];
   }
 
   /**
