@@ -128,6 +128,10 @@ export class TokenPassing implements Policy {
   private heldBackSince = 0;
   private readonly requestQueue: Int32Array;
   private readonly swapCandidates = new Int32Array(maxSwapCandidates);
+  /** Robots on their way to a pickup (`listToPickup`), valid while the world's version is `toPickupVersion` within one step. */
+  private readonly toPickup: Int32Array;
+  private toPickupCount = 0;
+  private toPickupVersion = -1;
   /** Consecutive failed plans per robot, and the tick of its next try. */
   private readonly failures: Int32Array;
   private readonly retryAt: Float64Array;
@@ -172,6 +176,7 @@ export class TokenPassing implements Policy {
     this.eligible = new EligibleTasks(this.routes);
     // Every robot asks at most once per step, plus once more when displaced by a swap.
     this.requestQueue = new Int32Array(2 * world.robotCount);
+    this.toPickup = new Int32Array(world.robotCount);
     this.endCell = new Int32Array(world.robotCount);
     for (let r = 0; r < world.robotCount; r++) {
       this.table.rest(r, world.robotCell[r], 0);
@@ -186,6 +191,8 @@ export class TokenPassing implements Policy {
     let retryTick = Infinity;
     execution.beginStep(tick);
     this.countHeldBack(tick);
+    // The engine changed phases since the last step (arrivals, handling, chargers).
+    this.toPickupVersion = -1;
     // Token requests in robot order; displaced robots (swaps) join the end of the queue. A
     // robot asks once its reserved path has ended (with delays the table holds the re-timed
     // paths, so it has then driven all of it).
@@ -444,8 +451,11 @@ export class TokenPassing implements Policy {
     const candidates = this.swapCandidates;
     let count = 0;
     const endRobot = table.endRobot;
-    for (let other = 0; other < world.robotCount; other++) {
-      if (other === robot || world.robotPhase[other] !== phaseToPickup) continue;
+    if (this.toPickupVersion !== world.version) this.listToPickup();
+    const toPickup = this.toPickup;
+    for (let i = 0, n = this.toPickupCount; i < n; i++) {
+      const other = toPickup[i];
+      if (other === robot) continue;
       const task = world.robotTask[other];
       const pickup = world.taskPickup[task];
       const d = toRobot[pickup];
@@ -470,27 +480,31 @@ export class TokenPassing implements Policy {
       const oldPath = table.paths[other]!;
       const oldStart = table.pathStart[other];
       const otherCell = world.robotCell[other];
-      if (TokenPassing.skipFruitlessProbes && this.standsOnStop(otherCell, task)) {
-        // Its probe cannot end in a swap (`probe`): leave the table as the tentative stop,
-        // the probe and the restore below would leave it, without them. `isFreeFrom` reads
-        // the same whether or not the other's own path is released (it ignores the robot
-        // it is asked for). Past that test this robot's path becomes a rest from now (the
-        // paths and rests are otherwise as they were); before it, only the revision moved,
-        // and it moves here too, so the robots it wakes (`wakeRevision`) are the same.
-        if (table.isFreeFrom(otherCell, tick, other)) {
-          this.swapProbes++;
-          this.swapProbesSkipped++;
-          table.rest(robot, cell, tick);
-        } else {
-          table.revision++;
-        }
-        continue;
-      }
       // Tentatively stop the other robot where it stands, then plan this one. It may stop
       // only where no other robot's reserved path or rest comes later (it could be crossing
       // the cell where another robot will end its path); otherwise no swap with it.
+      const skip = TokenPassing.skipFruitlessProbes;
+      if (skip) {
+        // The same tests without touching the table where their answer ends the try (same
+        // choices): `isFreeFrom` reads the same before the other's path is released (it
+        // ignores the robot it is asked for), and a candidate on a stop of its task cannot
+        // be swapped (`standsOnStop`). The table is left as the release, probe and restore
+        // would leave it: paths and rests as they were, except, past the first test, this
+        // robot's path, which becomes a rest from now. The revision moves as it would have,
+        // so the robots it wakes (`wakeRevision`) are the same.
+        if (!table.isFreeFrom(otherCell, tick, other)) {
+          table.revision++;
+          continue;
+        }
+        if (this.standsOnStop(otherCell, task)) {
+          this.swapProbes++;
+          this.swapProbesSkipped++;
+          table.rest(robot, cell, tick);
+          continue;
+        }
+      }
       table.release(other, tick);
-      if (!table.isFreeFrom(otherCell, tick, other)) {
+      if (!skip && !table.isFreeFrom(otherCell, tick, other)) {
         table.reserve(other, oldPath, oldStart, tick);
         continue;
       }
@@ -538,6 +552,22 @@ export class TokenPassing implements Policy {
     if (skip) request.deadline = deadline;
     const length = this.planner.search.find(request);
     return length >= 0 && tick + length - 1 < deadline;
+  }
+
+  /**
+   * The robots on their way to a pickup (phase ToPickup), in index order: the robots a swap
+   * may take a task from, as a scan of every robot in index order finds them. Phases change
+   * between steps (the engine) and, within a step, only by this policy's assign and unassign,
+   * which move the world's version: the list is kept while neither happened.
+   */
+  private listToPickup(): void {
+    const world = this.context.world;
+    const phase = world.robotPhase;
+    const list = this.toPickup;
+    let count = 0;
+    for (let r = 0; r < world.robotCount; r++) if (phase[r] === phaseToPickup) list[count++] = r;
+    this.toPickupCount = count;
+    this.toPickupVersion = world.version;
   }
 
   /**
