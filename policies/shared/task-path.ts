@@ -43,8 +43,13 @@ export interface ParkingAfter {
  * fails. With `parkingAfter`, the path does not end on the last stop: it goes on to the
  * first of those rest spots it can rest on (in the order given, at most three tried),
  * and the plan fails when none works.
+ *
+ * `pickupLeg` > 0: the search's `path` holds, with that length, the leg to the pickup the
+ * first search would return (the same request, `pickupLegRequest`, on the same table, just
+ * searched by the caller): it is used instead of searching again, unless the horizon is
+ * raised for this plan (a longer horizon may let the search choose another path).
  */
-export function planTask(planner: Planner, robot: number, from: number, tick: number, task: number, parkingAfter?: ParkingAfter): TaskPlan | null {
+export function planTask(planner: Planner, robot: number, from: number, tick: number, task: number, parkingAfter?: ParkingAfter, pickupLeg = -1): TaskPlan | null {
   const { world } = planner;
   const heading = world.robotHeading[robot];
   stopCells[0] = world.taskPickup[task];
@@ -58,7 +63,7 @@ export function planTask(planner: Planner, robot: number, from: number, tick: nu
     stopCount = 3;
   }
   if (!parkingAfter) {
-    const pickupTick = planStops(planner, robot, from, tick, heading, stopCount, true);
+    const pickupTick = planStops(planner, robot, from, tick, heading, stopCount, true, pickupLeg);
     return pickupTick < 0 ? null : { path: assemble(stopCount, null), pickupTick };
   }
   const lastStop = stopCells[stopCount - 1];
@@ -117,7 +122,7 @@ function assemble(stopCount: number, rest: Int32Array | null): Int32Array {
  * at the pickup, or -1 when a leg fails. `restAtEnd`: the last stop ends in a rest;
  * otherwise it is held for its handling only.
  */
-function planStops(planner: Planner, robot: number, from: number, tick: number, heading: number, stopCount: number, restAtEnd: boolean): number {
+function planStops(planner: Planner, robot: number, from: number, tick: number, heading: number, stopCount: number, restAtEnd: boolean, pickupLeg = -1): number {
   const { table, search, distances } = planner;
   let readyTick = readyTickOf(planner.world, robot, tick);
   let estimate = 64;
@@ -126,14 +131,17 @@ function planStops(planner: Planner, robot: number, from: number, tick: number, 
     estimate += 3 * distances.distance(previous, stopCells[i]) + stopHolds[i];
     previous = stopCells[i];
   }
+  const horizon = table.horizon;
   table.ensureHorizon(estimate);
+  // The caller's leg is the first search's own answer while the horizon stays as it was.
+  if (table.horizon !== horizon) pickupLeg = -1;
   let cell = from;
   let t = tick;
   let pickupTick = -1;
   for (let i = 0; i < stopCount; i++) {
     const goal = stopCells[i];
     const hold = stopHolds[i];
-    const length = search.find(requestFor(robot, cell, t, goal, distances.to(goal), hold, i === stopCount - 1 && restAtEnd, heading, readyTick));
+    const length = i === 0 && pickupLeg > 0 ? pickupLeg : search.find(requestFor(robot, cell, t, goal, distances.to(goal), hold, i === stopCount - 1 && restAtEnd, heading, readyTick));
     if (length < 0) return -1;
     if (legs[i].length < length) legs[i] = new Int32Array(2 * length);
     const leg = legs[i];
@@ -149,6 +157,13 @@ function planStops(planner: Planner, robot: number, from: number, tick: number, 
   }
   lastLegHeading = heading;
   return pickupTick;
+}
+
+/** The request of a task's first leg (to the pickup) as `planTask` searches it, for a caller that searches that leg first (`pickupLeg`). */
+export function pickupLegRequest(planner: Planner, robot: number, from: number, tick: number, task: number): SearchRequest {
+  const world = planner.world;
+  const pickup = world.taskPickup[task];
+  return requestFor(robot, from, tick, pickup, planner.distances.to(pickup), world.taskPickupTicks[task], false, world.robotHeading[robot], readyTickOf(world, robot, tick));
 }
 
 /** First tick at which robot r can turn or move: after a turn in progress or a held-back move (at least `tick`). */

@@ -46,7 +46,7 @@ import { PlanExecution } from '../../sim/plan-execution.ts';
 import { Phase } from '../../sim/world.ts';
 import { EligibleTasks } from './eligible-tasks.ts';
 import { OpenTasksByRoute } from './open-tasks-by-route.ts';
-import { freeParkingSpots, planRest, planTask, readyTickOf, requestFor, type Planner } from '../shared/task-path.ts';
+import { freeParkingSpots, pickupLegRequest, planRest, planTask, type Planner } from '../shared/task-path.ts';
 
 // Read once: imported bindings are getters under the TypeScript loader, and these are read per robot per step.
 const phaseIdle = Phase.Idle;
@@ -510,7 +510,9 @@ export class TokenPassing implements Policy {
       }
       table.rest(other, otherCell, tick);
       table.release(robot, tick);
-      const plan = this.probe(robot, cell, tick, other, otherCell, task) ? planTask(this.planner, robot, cell, tick, task) : null;
+      const leg = this.probe(robot, cell, tick, other, otherCell, task);
+      // The probe's leg is the plan's first leg (same request and table; `skipFruitlessProbes` off: searched again).
+      const plan = leg > 0 ? planTask(this.planner, robot, cell, tick, task, undefined, TokenPassing.skipFruitlessProbes ? leg : -1) : null;
       if (plan && plan.pickupTick < this.pickupTick[other]) {
         this.noteEnd(other, otherCell);
         world.unassign(other);
@@ -527,9 +529,10 @@ export class TokenPassing implements Policy {
   }
 
   /**
-   * The swap probe: true when robot r, planned from `cell` at `tick` against the table with
-   * the other robot stopped on `otherCell`, reaches the pickup of the other's task before
-   * the other would (its pickup leg alone, searched; the whole task is planned only then).
+   * The swap probe: when robot r, planned from `cell` at `tick` against the table with the
+   * other robot stopped on `otherCell`, reaches the pickup of the other's task before the
+   * other would (its pickup leg alone, searched; the whole task is planned only then), the
+   * length of that leg, left in the search's `path`; else -1.
    * Two exact shortcuts (`skipFruitlessProbes`), each proving that the answer, or the plan
    * after it, is a failure, so the swap is not made either way:
    *  - the other robot stands on a stop of the task (`standsOnStop`, checked by `trySwap`
@@ -538,20 +541,18 @@ export class TokenPassing implements Policy {
    *    soon as it has proved it cannot arrive before it (sim/space-time-astar.ts), where the
    *    full search would go on to find a later arrival that the probe rejects anyway.
    */
-  private probe(robot: number, cell: number, tick: number, other: number, otherCell: number, task: number): boolean {
-    const { world, distances } = this.context;
-    const pickup = world.taskPickup[task];
+  private probe(robot: number, cell: number, tick: number, other: number, otherCell: number, task: number): number {
     const skip = TokenPassing.skipFruitlessProbes;
     this.swapProbes++;
     if (skip && this.standsOnStop(otherCell, task)) {
       this.swapProbesSkipped++;
-      return false;
+      return -1;
     }
     const deadline = this.pickupTick[other];
-    const request = requestFor(robot, cell, tick, pickup, distances.to(pickup), world.taskPickupTicks[task], false, world.robotHeading[robot], readyTickOf(world, robot, tick));
+    const request = pickupLegRequest(this.planner, robot, cell, tick, task);
     if (skip) request.deadline = deadline;
     const length = this.planner.search.find(request);
-    return length >= 0 && tick + length - 1 < deadline;
+    return length >= 0 && tick + length - 1 < deadline ? length : -1;
   }
 
   /**
