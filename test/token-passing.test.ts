@@ -154,8 +154,10 @@ describe('token passing: fruitless token requests are skipped without changing a
 describe('token passing with swaps: fruitless swap probes are skipped or cut short without changing a choice', () => {
   // Ma et al., AAMAS 2017 (TPTS): a free robot takes another's task only if it reaches the
   // pickup earlier. The probe's shortcuts (the other robot stands on a stop of the task; the
-  // pickup leg searched with the other's pickup tick as deadline) must leave every swap, plan
-  // and figure as the full probes give them: only the search's own counters may differ.
+  // pickup leg searched with the other's pickup tick as deadline; the plan reusing the
+  // probe's leg) and the requests answered at once (`idleRequest`) must leave every swap,
+  // plan and figure as the full probes and requests give them: only the search's own
+  // counters may differ.
   const saturated = (file: string, robots: number, hours: number, mode: 'delivery' | 'round-trip', turnSeconds?: number) => {
     const loaded = loadScenarioFile(file, { policy: 'token-passing-swaps', robots, hours, replications: 1 });
     if (loaded.demand.kind === 'trace') throw new Error(`${file}: expected generated demand`);
@@ -166,22 +168,25 @@ describe('token passing with swaps: fruitless swap probes are skipped or cut sho
   };
   const run = (scenario: ReturnType<typeof saturated>, skip: boolean) => {
     TokenPassing.skipFruitlessProbes = skip;
+    TokenPassing.skipFruitlessRequests = skip;
     try {
       const [r] = runReplications(scenario);
       const { timing: _timing, policyCounters, ...rest } = r;
-      const { searches, expansions, unreachableSkips: _u, swapProbesSkipped, deadlineStops, ...counters } = policyCounters;
-      return { rest, counters, searches, expansions, swapProbesSkipped, deadlineStops };
+      const { searches, expansions, unreachableSkips: _u, swapProbesSkipped, deadlineStops, idleRequests, ...counters } = policyCounters;
+      return { rest, counters, searches, expansions, swapProbesSkipped, deadlineStops, idleRequests };
     } finally {
       TokenPassing.skipFruitlessProbes = true;
+      TokenPassing.skipFruitlessRequests = true;
     }
   };
   // With the fewest swaps each case makes (more tasks than robots on the goods-to-person floor: few robots are free to swap).
-  const cases: [string, ReturnType<typeof saturated>, number][] = [
-    ['demo hall, 100 robots, skewed drops', saturated('scenarios/demo-sortation.yaml', 100, 0.25, 'delivery'), 100],
-    ['demo hall, 60 forward-only robots (1 s quarter turns)', saturated('scenarios/demo-sortation.yaml', 60, 0.25, 'delivery', 1), 20],
-    ['goods-to-person floor, 60 robots, round trips', saturated('scenarios/demo-fulfillment.yaml', 60, 1, 'round-trip'), 10],
+  // Robots idle on rest spots (requests answered at once) only where the drops hold tasks back (the demo hall).
+  const cases: [string, ReturnType<typeof saturated>, number, boolean][] = [
+    ['demo hall, 100 robots, skewed drops', saturated('scenarios/demo-sortation.yaml', 100, 0.25, 'delivery'), 100, true],
+    ['demo hall, 60 forward-only robots (1 s quarter turns)', saturated('scenarios/demo-sortation.yaml', 60, 0.25, 'delivery', 1), 20, true],
+    ['goods-to-person floor, 60 robots, round trips', saturated('scenarios/demo-fulfillment.yaml', 60, 1, 'round-trip'), 10, false],
   ];
-  for (const [name, scenario, swaps] of cases) {
+  for (const [name, scenario, swaps, idle] of cases) {
     it(`${name}: the same run with the shortcuts on and off, on fewer searches`, () => {
       const cut = run(scenario, true);
       const full = run(scenario, false);
@@ -191,6 +196,9 @@ describe('token passing with swaps: fruitless swap probes are skipped or cut sho
       expect(cut.counters).toEqual(full.counters);
       expect(full.swapProbesSkipped).toBe(0);
       expect(full.deadlineStops).toBe(0);
+      expect(full.idleRequests).toBe(0);
+      // Token requests answered at once: counted as requests either way (so in `counters` above).
+      if (idle) expect(cut.idleRequests).toBeGreaterThan(0);
       expect(cut.deadlineStops).toBeGreaterThan(0);
       expect(cut.searches).toBeLessThanOrEqual(full.searches);
       expect(cut.expansions).toBeLessThan(full.expansions);
