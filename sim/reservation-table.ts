@@ -202,6 +202,34 @@ export class ReservationTable {
     return count;
   }
 
+  /**
+   * The earliest tick >= k at which `self` can arrive on `cell` and stay there for `hold`
+   * more ticks, with the cell's safe intervals read from tick `from` on (as `safeIntervals`
+   * gives them, so never before `from`) and robot `ignored`'s entries and rest left out as
+   * well as `self`'s; `foreverTick` when there is none. It is the goal-ready tick of the
+   * search (sim/space-time-astar.ts, `ready` over the arrival windows) as if `ignored` had
+   * been released, without releasing it: a lower bound on when a robot k ticks away can
+   * start its handling there (token passing's swap probe, policies/token-passing).
+   */
+  earliestStay(cell: number, from: number, k: number, hold: number, self: number, ignored: number): number {
+    const rester = this.endRobot[cell];
+    const last = rester >= 0 && rester !== self && rester !== ignored ? this.endFrom[cell] - 1 : foreverTick;
+    let cursor = from;
+    for (let e = this.cellStart[cell], end = e + this.listLength[cell]; e < end; e++) {
+      const start = this.from[e];
+      if (start > last) break;
+      const stop = this.to[e];
+      const robot = this.robot[e];
+      if (stop < cursor || robot === self || robot === ignored) continue;
+      // The free run [cursor, start - 1] holds an arrival a with a + hold <= start - 1.
+      if (start > cursor && start - 1 - hold >= cursor && start - 1 - hold >= k) return cursor > k ? cursor : k;
+      cursor = stop + 1;
+    }
+    if (cursor > last) return foreverTick;
+    if (last === foreverTick) return cursor > k ? cursor : k;
+    return last - hold >= cursor && last - hold >= k ? (cursor > k ? cursor : k) : foreverTick;
+  }
+
   /** Removes the entries of `cell` that ended before now (keeping the others in order). */
   private dropEnded(cell: number): void {
     const first = this.cellStart[cell];

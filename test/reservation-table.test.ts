@@ -55,6 +55,13 @@ class NaiveTable {
     return !rest || rest.robot === self || rest.from > tick;
   }
 
+  /** Free for `self` with robot `ignored`'s entries and rest left out too. */
+  isFreeExcept(cell: number, tick: number, self: number, ignored: number): boolean {
+    if (this.holders(cell, tick).some((r) => r !== self && r !== ignored)) return false;
+    const rest = this.rests.get(cell);
+    return !rest || rest.robot === self || rest.robot === ignored || rest.from > tick;
+  }
+
   positionAt(robot: number, tick: number): number {
     const p = this.paths.get(robot);
     if (!p || tick < p.start) return -1;
@@ -63,7 +70,7 @@ class NaiveTable {
 }
 
 describe('ReservationTable against a naive model (property test, fast-check)', () => {
-  it('answers isFree, holder, swaps, mayStep, isFreeFrom, isFreeDuring, safeIntervals, positionAt and restCell like the model', () => {
+  it('answers isFree, holder, swaps, mayStep, isFreeFrom, isFreeDuring, safeIntervals, earliestStay, positionAt and restCell like the model', () => {
     fc.assert(
       fc.property(fc.integer({ min: 0, max: 1_000_000 }), (seed) => {
         const random = seedrandom(`table-${seed}`);
@@ -124,6 +131,19 @@ describe('ReservationTable against a naive model (property test, fast-check)', (
             }
             if (runs.length > 0 && runs[runs.length - 1][1] === base + 40) runs[runs.length - 1][1] = foreverTick;
             expect(Array.from({ length: count }, (_, i) => [lo[i], hi[i]])).toEqual(runs);
+            // The earliest stay: the first a >= max(k, tick) with [a, a + hold] free for self
+            // when another robot's reservations are left out as well (past the last entry a
+            // cell stays as it is: free, or held by a rest for good).
+            const ignored = Math.floor(random() * robots);
+            const hold = Math.floor(random() * 4);
+            const k = tick + Math.floor(random() * 6) - 2;
+            let stay = foreverTick;
+            for (let a = Math.max(k, tick); a <= base + 40 && stay === foreverTick; a++) {
+              let free = true;
+              for (let t = a; t <= a + hold; t++) free &&= model.isFreeExcept(cell, t, self, ignored);
+              if (free) stay = a;
+            }
+            expect(table.earliestStay(cell, tick, k, hold, self, ignored)).toBe(stay);
             const neighbour = Math.floor(random() * cells);
             // The walk's one-pass step test answers as the two queries it stands for (each checked against the model here).
             for (const toFree of [false, true]) {
