@@ -66,6 +66,8 @@ function measure(name: string, scenario: Scenario): Row {
     collisions: record.collisions,
     // Robots the planned policies rest on rest cells beyond the parking spots (sim/rest-cells.ts).
     restCells: record.policyCounters.restCells ?? 0,
+    // Space-time searches of the planned policies (token passing, flow-batch), null for the others.
+    searches: record.policyCounters.searches ?? null,
   };
   log(`${name} ${scenario.policy.name} ${scenario.fleet.robots} robots: ${row.agentStepsPerSecond} agent-steps/s`);
   return row;
