@@ -311,6 +311,7 @@ export class SpaceTimeAStar {
     // per 32 floor cells), so neither a doomed search nor a needless check costs much more
     // than the other (the ski-rental rule).
     const lazyAfter = this.reachabilityAfter + heuristic[start] + (this.layout.floorCells.length >> 5);
+    if (headings === 1) return this.searchWithoutHeadings(start, stopKey, lazyAfter, checked);
     while (this.heapSize > 0) {
       if (this.heapKey[0] > stopKey) return this.deadlineEnd(expanded);
       const node = this.heapPop();
@@ -328,50 +329,10 @@ export class SpaceTimeAStar {
       if (++expanded > this.maxExpansions) break;
       if (!checked && expanded > lazyAfter) {
         checked = true;
-        // Labels built for this very table and tick are as precise as they get.
-        if (this.labelBuiltRevision !== table.restRevision || this.labelBuiltTick !== startTick) {
-          if (this.labelsExact(startTick)) this.markLabelsBuilt(startTick);
-          else this.buildLabels(startTick);
-        }
-        if (this.labelsCurrent(startTick, start) && !this.reachable(start, goal)) {
-          this.unreachableRate += 1 / 16;
-          this.unreachableSkips++;
-          break;
-        }
+        if (this.provenUnreachable(start)) break;
       }
       const leaveBy = this.intervalHi[interval] + 1;
       const base = cell * 4;
-      if (headings === 1) {
-        // `generate` written out for states without a heading (the common case): the same
-        // successors in the same order, without a call per neighbour.
-        const latest = leaveBy < this.lastTick ? leaveBy : this.lastTick;
-        for (let d = 0; d < 4; d++) {
-          const n = neighbors[base + d];
-          if (n < 0 || heuristic[n] >= unreachable) continue;
-          if (n === goal) {
-            this.generate(node, cell, tick, leaveBy, n, 0);
-            continue;
-          }
-          const first = this.cellStamp[n] === this.searchId ? this.cellFirst[n] : this.touch(n);
-          // Read after touch, which may grow the pool.
-          const lo = this.intervalLo;
-          const hi = this.intervalHi;
-          const best = this.intervalBest;
-          for (let i = first, end = first + this.cellCount[n]; i < end; i++) {
-            const from = lo[i];
-            if (from > latest) break;
-            const until = hi[i];
-            if (until <= tick) continue;
-            let arrival = tick + 1 > from ? tick + 1 : from;
-            // The swap test of `generate` (see there).
-            if (arrival === from && (arrival === leaveBy || !this.pathsWritten) && table.swaps(cell, n, arrival - 1, this.robot)) arrival++;
-            if (arrival > (latest < until ? latest : until) || arrival >= best[i]) continue;
-            best[i] = arrival;
-            this.push(n, i, 0, arrival, node);
-          }
-        }
-        continue;
-      }
       // Forward-only: the cell ahead, or a quarter turn either way within the cell's interval.
       const ahead = neighbors[base + heading];
       if (ahead >= 0 && heuristic[ahead] < unreachable) this.generate(node, cell, tick, leaveBy, ahead, heading);
@@ -388,6 +349,150 @@ export class SpaceTimeAStar {
     }
     this.expansions += expanded;
     return -1;
+  }
+
+  /**
+   * The loop of `find` for states without a heading (turnTicks 0, the common case), kept in
+   * its own, smaller function so that it is compiled early and as a whole: `push`, `ready`,
+   * the heap's push and pop and `generate` (but at the goal) written out, with the same
+   * successors in the same order and the same heap operations, so its pops, expansions and
+   * paths are those of the general loop, state for state.
+   */
+  private searchWithoutHeadings(start: number, stopKey: number, lazyAfter: number, checked: boolean): number {
+    const table = this.table;
+    const neighbors = this.layout.neighbors;
+    const heuristic = this.heuristic;
+    const goal = this.goal;
+    const robot = this.robot;
+    const startTick = this.startTick;
+    const lastTick = this.lastTick;
+    const pathsWritten = this.pathsWritten;
+    const searchId = this.searchId;
+    const maxExpansions = this.maxExpansions;
+    const cellStamp = this.cellStamp;
+    const cellFirst = this.cellFirst;
+    const cellCount = this.cellCount;
+    // The goal's arrival windows stay as goalWindows left them; `ready` with one window inline.
+    const oneWindow = this.windows === 1;
+    const onlyLo = this.windowLo[0];
+    const onlyHi = this.windowHi[0];
+    let expanded = 0;
+    while (this.heapSize > 0) {
+      let heapNode = this.heapNode;
+      let heapKey = this.heapKey;
+      if (heapKey[0] > stopKey) return this.deadlineEnd(expanded);
+      // heapPop, written out.
+      const node = heapNode[0];
+      const size = --this.heapSize;
+      if (size > 0) {
+        const last = heapNode[size];
+        const key = heapKey[size];
+        let i = 0;
+        for (;;) {
+          const left = 2 * i + 1;
+          if (left >= size) break;
+          const right = left + 1;
+          const child = right < size && heapKey[right] < heapKey[left] ? right : left;
+          if (heapKey[child] >= key) break;
+          heapNode[i] = heapNode[child];
+          heapKey[i] = heapKey[child];
+          i = child;
+        }
+        heapNode[i] = last;
+        heapKey[i] = key;
+      }
+      const cell = this.nodeCell[node];
+      const tick = this.nodeTick[node];
+      if (cell === goal) {
+        this.expansions += expanded;
+        this.lastHeading = 0;
+        return this.trace(node);
+      }
+      const interval = this.nodeInterval[node];
+      // A later copy of a state already reached earlier: nothing new to expand.
+      if (tick > this.intervalBest[interval]) continue;
+      if (++expanded > maxExpansions) break;
+      if (!checked && expanded > lazyAfter) {
+        checked = true;
+        if (this.provenUnreachable(start)) break;
+      }
+      const leaveBy = this.intervalHi[interval] + 1;
+      const latest = leaveBy < lastTick ? leaveBy : lastTick;
+      const base = cell * 4;
+      for (let d = 0; d < 4; d++) {
+        const n = neighbors[base + d];
+        if (n < 0) continue;
+        const distance = heuristic[n];
+        if (distance >= unreachable) continue;
+        if (n === goal) {
+          this.generate(node, cell, tick, leaveBy, n, 0);
+          continue;
+        }
+        const first = cellStamp[n] === searchId ? cellFirst[n] : this.touch(n);
+        // Read after touch, which may grow the pool.
+        const lo = this.intervalLo;
+        const hi = this.intervalHi;
+        const best = this.intervalBest;
+        for (let i = first, end = first + cellCount[n]; i < end; i++) {
+          const from = lo[i];
+          if (from > latest) break;
+          const until = hi[i];
+          if (until <= tick) continue;
+          let arrival = tick + 1 > from ? tick + 1 : from;
+          // The swap test of `generate` (see there).
+          if (arrival === from && (arrival === leaveBy || !pathsWritten) && table.swaps(cell, n, arrival - 1, robot)) arrival++;
+          if (arrival > (latest < until ? latest : until) || arrival >= best[i]) continue;
+          best[i] = arrival;
+          // push(n, i, 0, arrival, node), written out (the heading stays 0: no search of this
+          // instance has one).
+          if (this.nodes === this.nodeCell.length) this.growNodes();
+          const child = this.nodes++;
+          this.nodeCell[child] = n;
+          this.nodeInterval[child] = i;
+          this.nodeTick[child] = arrival;
+          this.nodeParent[child] = node;
+          const k = arrival + distance;
+          const ready = oneWindow ? (onlyHi < k ? never : k > onlyLo ? k : onlyLo) : this.ready(k);
+          if (ready > lastTick) continue; // the goal cannot be reached in time from here
+          const key = (ready - startTick) * 1048576 - (arrival - startTick);
+          // heapPush, written out.
+          heapNode = this.heapNode;
+          heapKey = this.heapKey;
+          let h = this.heapSize++;
+          while (h > 0) {
+            const parent = (h - 1) >> 1;
+            if (heapKey[parent] <= key) break;
+            heapNode[h] = heapNode[parent];
+            heapKey[h] = heapKey[parent];
+            h = parent;
+          }
+          heapNode[h] = child;
+          heapKey[h] = key;
+        }
+      }
+    }
+    this.expansions += expanded;
+    return -1;
+  }
+
+  /**
+   * The lazy reachability check of a search that drags on: (re)labels when the labels are
+   * not those of this table and tick, and true (recording the skip) when they prove the goal
+   * unreachable from `start`.
+   */
+  private provenUnreachable(start: number): boolean {
+    const startTick = this.startTick;
+    // Labels built for this very table and tick are as precise as they get.
+    if (this.labelBuiltRevision !== this.table.restRevision || this.labelBuiltTick !== startTick) {
+      if (this.labelsExact(startTick)) this.markLabelsBuilt(startTick);
+      else this.buildLabels(startTick);
+    }
+    if (this.labelsCurrent(startTick, start) && !this.reachable(start, this.goal)) {
+      this.unreachableRate += 1 / 16;
+      this.unreachableSkips++;
+      return true;
+    }
+    return false;
   }
 
   /**
