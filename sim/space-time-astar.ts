@@ -114,21 +114,26 @@ export interface SearchRequest {
 }
 
 const never = foreverTick;
+/** Starting size of the node, heap and interval arrays (see `nodeCell`). */
+const initialCapacity = 16;
 
 export class SpaceTimeAStar {
-  // Search nodes: a (cell, interval) reached at a tick, with its parent.
-  private nodeCell = new Int32Array(1024);
-  private nodeInterval = new Int32Array(1024);
-  private nodeTick = new Int32Array(1024);
-  private nodeParent = new Int32Array(1024);
-  private nodeHeading = new Uint8Array(1024);
+  // Search nodes: a (cell, interval) reached at a tick, with its parent. The node and interval
+  // arrays start small (`initialCapacity`) and double as needed: the first searches then grow
+  // them while the code still runs unoptimized, so the growth paths have run (and have type
+  // feedback) before the search loop is optimized, instead of deoptimizing it later.
+  private nodeCell = new Int32Array(initialCapacity);
+  private nodeInterval = new Int32Array(initialCapacity);
+  private nodeTick = new Int32Array(initialCapacity);
+  private nodeParent = new Int32Array(initialCapacity);
+  private nodeHeading = new Uint8Array(initialCapacity);
   private nodes = 0;
-  private heapNode = new Int32Array(1024);
-  private heapKey = new Float64Array(1024);
+  private heapNode = new Int32Array(initialCapacity);
+  private heapKey = new Float64Array(initialCapacity);
   private heapSize = 0;
   // Safe intervals of the cells touched by this search: [lo, hi] and the earliest tick reached (per heading).
-  private intervalLo = new Int32Array(1024);
-  private intervalHi = new Int32Array(1024);
+  private intervalLo = new Int32Array(initialCapacity);
+  private intervalHi = new Int32Array(initialCapacity);
   private intervalBest: Int32Array;
   /** Headings per state: 4 for forward-only robots, 1 when turning takes no time. */
   private readonly headings: number;
@@ -199,7 +204,7 @@ export class SpaceTimeAStar {
     readonly turnTicks = 0,
   ) {
     this.headings = turnTicks > 0 ? 4 : 1;
-    this.intervalBest = new Int32Array(1024 * this.headings).fill(never);
+    this.intervalBest = new Int32Array(initialCapacity * this.headings).fill(never);
     const cells = layout.cellCount;
     this.cellStamp = new Int32Array(cells);
     this.cellFirst = new Int32Array(cells);
