@@ -3,6 +3,9 @@
  * releases and assignments, each route's count and earliest task equal what a scan of the
  * world's open list gives (the list token passing used to scan on every request), and each
  * pickup group lists exactly that pickup's routes with open tasks, with its open count.
+ * Tasks are taken anywhere on their route (not only the earliest), and some are delivered
+ * at once so that their slots come back as new tasks (the routes' lists are threaded
+ * through task ids).
  */
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
@@ -16,11 +19,12 @@ describe('OpenTasksByRoute', () => {
   it('matches a scan of the open list after random releases and assignments (fast-check)', () => {
     const op = fc.oneof(
       fc.record({ kind: fc.constant('release' as const), pickup: fc.nat(2), drop: fc.nat(2) }),
-      fc.record({ kind: fc.constant('assign' as const), which: fc.nat(1000) }),
+      // `deliver`: the task is delivered and retired at once, so later releases reuse its slot (task ids are slots).
+      fc.record({ kind: fc.constant('assign' as const), which: fc.nat(1000), deliver: fc.boolean() }),
       fc.record({ kind: fc.constant('check' as const) }),
     );
     fc.assert(
-      fc.property(fc.array(op, { maxLength: 200 }), (ops) => {
+      fc.property(fc.array(op, { maxLength: 200, size: 'medium' }), (ops) => {
         const world = new World(layout, 1);
         const index = new OpenTasksByRoute(layout.cellCount);
         let tick = 0;
@@ -33,6 +37,8 @@ describe('OpenTasksByRoute', () => {
             seen.add(key);
             const onRoute = world.openTasks.filter((t) => world.taskPickup[t] === index.pickup[r] && world.taskDrop[t] === index.drop[r]);
             expect(index.count(r)).toBe(onRoute.length);
+            // The whole route in release order (the open list's order), not only its earliest task.
+            expect(index.tasksOn(r)).toEqual(onRoute);
             if (onRoute.length > 0) {
               const earliest = onRoute.reduce((a, b) => (world.taskSerial[b] < world.taskSerial[a] ? b : a));
               expect(index.first(r)).toBe(earliest);
@@ -65,6 +71,11 @@ describe('OpenTasksByRoute', () => {
             const task = world.openTasks[o.which % world.openTasks.length];
             index.remove(world, task);
             world.assign(0, task);
+            if (o.deliver) {
+              world.markPickedUp(task, tick);
+              world.markDelivered(task, tick);
+              world.retire(task);
+            }
             // Hand the robot back at once (the test is about the open list only).
             world.robotTask[0] = -1;
             world.robotPhase[0] = Phase.Idle;

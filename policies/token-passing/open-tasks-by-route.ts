@@ -15,8 +15,9 @@
  * (tasks with a return cell, whose held tasks rejoin the list in the middle) are not
  * indexed: `sync` returns false and the caller scans the open list instead.
  *
- * Each route keeps its tasks in release order in an array with a head index: taking the
- * earliest is O(1); taking another one (rare) is a splice. Routes are grouped by pickup
+ * Each route keeps its tasks in release order as a singly linked list threaded through the
+ * task ids (`next`, first and last per route): releasing and taking the earliest are O(1)
+ * and allocate nothing; taking another one (rare) walks the route. Routes are grouped by pickup
  * (counts in typed arrays, and per pickup the list of its routes that have open tasks, in no
  * particular order), so a request looks at a pickup once: all its routes share its distance
  * and its endpoint test, and routes without open tasks (most of them under light demand)
@@ -30,15 +31,22 @@ const none = -1;
 const logCapacity = 1024;
 
 export class OpenTasksByRoute {
-  private readonly routeOf = new Map<number, number>();
+  /**
+   * Per drop cell (null: no route to it yet), the route to it from each pickup group (-1:
+   * none): a route is looked up at every release, every take and, for a robot resting on a
+   * drop, once per pickup (`routeBetween`), by two array reads instead of a hash.
+   */
+  private readonly routesTo: (Int32Array | null)[];
   /** Per route: pickup and drop cell (indexes below `routeCount`). */
   pickup = new Int32Array(64);
   drop = new Int32Array(64);
   /** Per route: open tasks on it, and its place in its group's list of routes with open tasks (-1: not there). */
   routeOpen = new Int32Array(64);
   private activeAt = new Int32Array(64);
-  private readonly tasks: number[][] = [];
+  /** Per route: its earliest and its latest open task (-1: none); per task id: the next open task on its route (-1: none). */
   private head = new Int32Array(64);
+  private tail = new Int32Array(64);
+  private next = new Int32Array(256);
   private routes = 0;
   /** Per pickup group (first-seen order): its cell, its open tasks on all routes, its routes with open tasks. */
   groupPickup = new Int32Array(16);
@@ -59,8 +67,9 @@ export class OpenTasksByRoute {
   /** Set once a task with a return cell is seen; from then on the index is not used. */
   private roundTrips = false;
 
-  constructor(private readonly cellCount: number) {
+  constructor(cellCount: number) {
     this.groupOf = new Int32Array(cellCount).fill(none);
+    this.routesTo = new Array<Int32Array | null>(cellCount).fill(null);
   }
 
   get routeCount(): number {
@@ -76,9 +85,16 @@ export class OpenTasksByRoute {
     return this.routeOpen[r];
   }
 
+  /** The open tasks on route `r`, earliest first (a copy, for tests). */
+  tasksOn(r: number): number[] {
+    const out: number[] = [];
+    for (let task = this.head[r]; task >= 0; task = this.next[task]) out.push(task);
+    return out;
+  }
+
   /** The earliest open task on route `r` (count(r) > 0). */
   first(r: number): number {
-    return this.tasks[r][this.head[r]];
+    return this.head[r];
   }
 
   /** Indexes the tasks released since the last call; false when the floor has round trips (no index). */
@@ -95,10 +111,9 @@ export class OpenTasksByRoute {
         return false;
       }
       const pickup = world.taskPickup[task];
-      const key = pickup * this.cellCount + world.taskDrop[task];
-      let route = this.routeOf.get(key);
-      if (route === undefined) route = this.addRoute(key, pickup, world.taskDrop[task]);
-      this.tasks[route].push(task);
+      let route = this.routeBetween(pickup, world.taskDrop[task]);
+      if (route < 0) route = this.addRoute(pickup, world.taskDrop[task]);
+      this.append(route, task);
       if (this.routeOpen[route]++ === 0) this.activate(route);
       this.groupOpen[this.groupOf[pickup]]++;
       this.nextSerial = serial[task] + 1;
@@ -107,7 +122,7 @@ export class OpenTasksByRoute {
     return true;
   }
 
-  private addRoute(key: number, pickup: number, drop: number): number {
+  private addRoute(pickup: number, drop: number): number {
     const route = this.routes++;
     if (route === this.pickup.length) {
       this.pickup = grown(this.pickup);
@@ -115,6 +130,7 @@ export class OpenTasksByRoute {
       this.routeOpen = grown(this.routeOpen);
       this.activeAt = grown(this.activeAt);
       this.head = grown(this.head);
+      this.tail = grown(this.tail);
       this.groupOfRoute = grown(this.groupOfRoute);
     }
     let group = this.groupOf[pickup];
@@ -128,13 +144,37 @@ export class OpenTasksByRoute {
       this.groupPickup[group] = pickup;
       this.groupRoutes.push([]);
     }
-    this.routeOf.set(key, route);
+    let byGroup = this.routesTo[drop];
+    if (byGroup === null || byGroup.length <= group) {
+      const wider = new Int32Array(Math.max(4, 2 * (group + 1))).fill(none);
+      if (byGroup !== null) wider.set(byGroup);
+      byGroup = wider;
+      this.routesTo[drop] = wider;
+    }
+    byGroup[group] = route;
     this.pickup[route] = pickup;
     this.drop[route] = drop;
     this.groupOfRoute[route] = group;
     this.activeAt[route] = none;
-    this.tasks.push([]);
+    this.head[route] = none;
+    this.tail[route] = none;
     return route;
+  }
+
+  /** Puts a task released after every other on its route at the route's end. */
+  private append(route: number, task: number): void {
+    if (task >= this.next.length) {
+      let capacity = this.next.length;
+      while (capacity <= task) capacity *= 2;
+      const next = new Int32Array(capacity);
+      next.set(this.next);
+      this.next = next;
+    }
+    this.next[task] = none;
+    const last = this.tail[route];
+    if (last < 0) this.head[route] = task;
+    else this.next[last] = task;
+    this.tail[route] = task;
   }
 
   /** The routes of pickup group `g` that have open tasks, in no particular order (read only). */
@@ -162,7 +202,10 @@ export class OpenTasksByRoute {
 
   /** The route from `pickup` to `drop`, or -1 when no task of it was ever indexed. */
   routeBetween(pickup: number, drop: number): number {
-    return this.routeOf.get(pickup * this.cellCount + drop) ?? none;
+    const group = this.groupOf[pickup];
+    if (group < 0) return none;
+    const byGroup = this.routesTo[drop];
+    return byGroup !== null && group < byGroup.length ? byGroup[group] : none;
   }
 
   /** Empties the change log (its reader is up to date). */
@@ -184,26 +227,24 @@ export class OpenTasksByRoute {
   remove(world: World, task: number): void {
     if (this.roundTrips) return;
     const pickup = world.taskPickup[task];
-    const route = this.routeOf.get(pickup * this.cellCount + world.taskDrop[task]);
-    if (route === undefined) return;
-    const list = this.tasks[route];
-    let head = this.head[route];
-    if (list[head] === task) {
-      head++;
+    const route = this.routeBetween(pickup, world.taskDrop[task]);
+    if (route < 0) return;
+    const next = this.next;
+    const head = this.head[route];
+    if (head === task) {
+      this.head[route] = next[task];
+      if (next[task] < 0) this.tail[route] = none;
     } else {
-      const at = list.indexOf(task, head);
-      if (at < 0) return;
-      list.splice(at, 1);
+      // Not the earliest: find the task before it on the route (none: not indexed there).
+      let before = head;
+      while (before >= 0 && next[before] !== task) before = next[before];
+      if (before < 0) return;
+      next[before] = next[task];
+      if (this.tail[route] === task) this.tail[route] = before;
     }
     if (--this.routeOpen[route] === 0) this.deactivate(route);
     this.groupOpen[this.groupOf[pickup]]--;
     this.log(route, -1 - task);
-    // Drop the taken prefix now and then, so the arrays do not grow with the run.
-    if (head >= 64 && 2 * head >= list.length) {
-      list.splice(0, head);
-      head = 0;
-    }
-    this.head[route] = head;
   }
 }
 
