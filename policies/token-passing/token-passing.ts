@@ -100,6 +100,17 @@ export class TokenPassing implements Policy {
    * robot after every plan.
    */
   private restRevision = 0;
+  /**
+   * The tick at which each robot's reserved path ends (`PlanExecution.pathEnd`), as of table
+   * revision `endsRevision` (-1: read again). Every robot is tested at every step for a path
+   * that has ended, and the table's paths are objects scattered over the heap: a typed array
+   * read per robot instead. Kept across steps (the engine does not touch the table; with
+   * delays the execution's re-timed paths move the revision) and, in plain token passing,
+   * within one for the robot whose request changed its path (the only one a request
+   * changes).
+   */
+  private readonly endTick: Int32Array;
+  private endsRevision = -1;
   /** The cell where each robot's reserved path ends. */
   private readonly endCell: Int32Array;
   /** 1 on pickup, drop and storage cells. */
@@ -180,6 +191,7 @@ export class TokenPassing implements Policy {
     this.requestQueue = new Int32Array(2 * world.robotCount);
     this.toPickup = new Int32Array(world.robotCount);
     this.endCell = new Int32Array(world.robotCount);
+    this.endTick = new Int32Array(world.robotCount);
     for (let r = 0; r < world.robotCount; r++) {
       this.table.rest(r, world.robotCell[r], 0);
       this.endCell[r] = world.robotCell[r];
@@ -200,7 +212,10 @@ export class TokenPassing implements Policy {
     // paths, so it has then driven all of it).
     const requests = this.requestQueue;
     let queued = 0;
-    for (let r = 0; r < robots; r++) if (execution.pathEnd(r) <= tick) requests[queued++] = r;
+    const table = this.table;
+    const ends = this.endTick;
+    if (table.revision !== this.endsRevision) this.readEnds();
+    for (let r = 0; r < robots; r++) if (ends[r] <= tick) requests[queued++] = r;
     // Robots displaced by a swap ask again in the same tick, but may not displace in turn:
     // chains of swaps cost a plan per link and rarely pay (a bound on the paper's recursion).
     const firstDisplaced = queued;
@@ -220,6 +235,9 @@ export class TokenPassing implements Policy {
         continue;
       }
       const displaced = this.request(r, tick, i < firstDisplaced);
+      // Plain token passing changes only the asking robot's path; a swap touches others too (read again next step).
+      if (this.swaps) this.endsRevision = -1;
+      else ends[r] = execution.pathEnd(r);
       if (displaced >= 0) requests[queued++] = displaced;
       if (displaced === -2) {
         // Back off after failed plans (1, 2, 4, 8, 16 ticks): a crowded floor rarely clears in one tick.
@@ -230,10 +248,19 @@ export class TokenPassing implements Policy {
         this.failures[r] = 0;
       }
     }
+    if (this.endsRevision >= 0) this.endsRevision = table.revision;
     const following = execution.step(tick, moves, turns);
     // The held-back count from now on reflects this step's assignments and rests.
     this.refreshCandidates();
     return following ? tick + 1 : retryTick;
+  }
+
+  /** Reads every robot's path end tick from the table (`endTick`). */
+  private readEnds(): void {
+    const execution = this.execution;
+    const ends = this.endTick;
+    for (let r = 0; r < ends.length; r++) ends[r] = execution.pathEnd(r);
+    this.endsRevision = this.table.revision;
   }
 
   /** Adds the task-ticks held back since the last step (the count is constant between steps: only steps change it). */
