@@ -63,8 +63,9 @@ export function planTask(planner: Planner, robot: number, from: number, tick: nu
     stopCount = 3;
   }
   if (!parkingAfter) {
-    const pickupTick = planStops(planner, robot, from, tick, heading, stopCount, true, pickupLeg);
-    return pickupTick < 0 ? null : { path: assemble(stopCount, null), pickupTick };
+    // The last leg is read from the search's own buffer: no search runs before `assemble`.
+    const pickupTick = planStops(planner, robot, from, tick, heading, stopCount, true, pickupLeg, false);
+    return pickupTick < 0 ? null : { path: assemble(stopCount, null, planner.search.path), pickupTick };
   }
   const lastStop = stopCells[stopCount - 1];
   // Without a free spot the plan cannot end well: fail before searching the task's legs.
@@ -101,12 +102,16 @@ function legTicks(stopCount: number): number {
   return ticks;
 }
 
-/** The planned legs with the handling waits between them, then `rest` (a leg from the last stop on) if given. */
-function assemble(stopCount: number, rest: Int32Array | null): Int32Array {
+/**
+ * The planned legs with the handling waits between them, then `rest` (a leg from the last
+ * stop on) if given. `lastLeg`: where the last leg is when `planStops` left it in the
+ * search's buffer (not copied), else null.
+ */
+function assemble(stopCount: number, rest: Int32Array | null, lastLeg: Int32Array | null = null): Int32Array {
   const path = newPath(1 + legTicks(stopCount) + (rest ? rest.length - 1 : 0));
   let offset = 0;
   for (let i = 0; i < stopCount; i++) {
-    const leg = legs[i];
+    const leg = lastLeg !== null && i === stopCount - 1 ? lastLeg : legs[i];
     // Every leg after the first starts on the previous leg's last cell: skip it. Loops, not
     // set()/fill(): legs are tens of cells, and each call (with its subarray) costs more.
     for (let k = i === 0 ? 0 : 1, length = legLength[i]; k < length; k++) path[offset++] = leg[k];
@@ -120,9 +125,11 @@ function assemble(stopCount: number, rest: Int32Array | null): Int32Array {
 /**
  * Searches the legs to the first `stopCount` stops into `legs`; returns the tick of arrival
  * at the pickup, or -1 when a leg fails. `restAtEnd`: the last stop ends in a rest;
- * otherwise it is held for its handling only.
+ * otherwise it is held for its handling only. `copyLast` false: the last leg stays in the
+ * search's `path` only (its length in `legLength`), for a caller that assembles the path
+ * before the next search; a plan's cells are then copied once, not twice.
  */
-function planStops(planner: Planner, robot: number, from: number, tick: number, heading: number, stopCount: number, restAtEnd: boolean, pickupLeg = -1): number {
+function planStops(planner: Planner, robot: number, from: number, tick: number, heading: number, stopCount: number, restAtEnd: boolean, pickupLeg = -1, copyLast = true): number {
   const { table, search, distances } = planner;
   let readyTick = readyTickOf(planner.world, robot, tick);
   let estimate = 64;
@@ -143,11 +150,13 @@ function planStops(planner: Planner, robot: number, from: number, tick: number, 
     const hold = stopHolds[i];
     const length = i === 0 && pickupLeg > 0 ? pickupLeg : search.find(requestFor(robot, cell, t, goal, distances.to(goal), hold, i === stopCount - 1 && restAtEnd, heading, readyTick));
     if (length < 0) return -1;
-    if (legs[i].length < length) legs[i] = new Int32Array(2 * length);
-    const leg = legs[i];
-    const found = search.path;
-    for (let k = 0; k < length; k++) leg[k] = found[k];
     legLength[i] = length;
+    if (copyLast || i < stopCount - 1) {
+      if (legs[i].length < length) legs[i] = new Int32Array(2 * length);
+      const leg = legs[i];
+      const found = search.path;
+      for (let k = 0; k < length; k++) leg[k] = found[k];
+    }
     heading = search.lastHeading;
     t += length - 1;
     if (i === 0) pickupTick = t;
