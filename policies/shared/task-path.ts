@@ -239,8 +239,10 @@ export function freeParkingSpots(spots: Int32Array, distances: DistanceTables, t
   let count = 0;
   for (let i = 0; i < spots.length; i++) {
     const c = spots[i];
+    // The end test first: with a full fleet most spots end a path, and their distance is not read.
+    if (endRobot[c] >= 0) continue;
     const d = toFrom[c];
-    if (endRobot[c] >= 0 || d >= unreachable) continue;
+    if (d >= unreachable) continue;
     if (count === limit && d >= toFrom[out[limit - 1]]) continue;
     // Insertion into the short sorted buffer; equal distances keep list order.
     let j = count < limit ? count++ : limit - 1;
