@@ -157,6 +157,8 @@ export class EligibleTasks {
     const routes = this.routes;
     let best = none;
     let bestDistance = Infinity;
+    // The routes to the robot's own cell, by group (looked up once, not per pickup).
+    const toCell = routes.routesToDrop(cell);
     for (let g = 0; g < routes.groupCount; g++) {
       if (routes.groupOpen[g] === 0) continue;
       const pickup = routes.groupPickup[g];
@@ -171,7 +173,7 @@ export class EligibleTasks {
       } else {
         // The pickup's shared candidate, or the earliest task to the robot's own cell.
         task = this.candidateOf[g];
-        const own = routes.routeBetween(pickup, cell);
+        const own = toCell !== null && g < toCell.length ? toCell[g] : none;
         if (own >= 0 && routes.routeOpen[own] > 0) {
           const ownTask = routes.first(own);
           if (task < 0 || serial[ownTask] < serial[task]) task = ownTask;

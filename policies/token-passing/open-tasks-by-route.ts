@@ -200,6 +200,11 @@ export class OpenTasksByRoute {
     this.activeAt[route] = none;
   }
 
+  /** The routes to `drop` by pickup group (-1: none; groups past its length: none), or null when no task to it was ever indexed (read only). */
+  routesToDrop(drop: number): Int32Array | null {
+    return this.routesTo[drop];
+  }
+
   /** The route from `pickup` to `drop`, or -1 when no task of it was ever indexed. */
   routeBetween(pickup: number, drop: number): number {
     const group = this.groupOf[pickup];
