@@ -74,6 +74,20 @@ const phaseHandlingReturn = Phase.HandlingReturn;
 const phaseToCharger = Phase.ToCharger;
 const handlingPhase = isHandling;
 
+/** Slots of a robot's block in the detector's packed per-robot state (`robotState`). */
+const stride = 16;
+const sLastCell = 0;
+const sMoves = 1;
+const sBoxMinX = 2;
+const sBoxMaxX = 3;
+const sBoxMinY = 4;
+const sBoxMaxY = 5;
+const sGoalSeen = 6;
+const sLastProgress = 7;
+const sEpisodeOf = 8;
+/** GoalProgress's slots (sim/goal-progress.ts: goalProgressSlots of them). */
+const sGoalProgress = 9;
+
 /** What each robot did over the evaluated step. */
 export const WaitStatus = {
   Handling: 0,
@@ -108,23 +122,23 @@ export class DeadlockDetector {
   readonly episodes: DetectorEpisode[] = [];
 
   private readonly robots: number;
-  private readonly lastProgress: Int32Array;
+  /**
+   * The per-robot state the detector reads at every evaluation, one block of `stride` numbers
+   * per robot (slots s*, above): the last cell seen, moves and bounding box since the last
+   * progress, the goal last seen, the tick of the last progress, the episode it is in (-1:
+   * none), and the goal progress's own numbers (sim/goal-progress.ts). The detector runs
+   * right after the policy's step has filled the caches with its own data: one block per
+   * robot is one line to fetch, read in robot order, where an array per number is a line per
+   * number.
+   */
+  private readonly robotState: Int32Array;
   /** New closest distance to the goal, followed step by step (sim/goal-progress.ts). */
   private readonly goalProgress: GoalProgress;
   private readonly fields: DistanceFields;
   /** Each robot's field for the goal it last needed one for. */
   private readonly fieldOf: (DistanceField | null)[];
   private readonly fieldGoal: Int32Array;
-  private readonly goalSeen: Int32Array;
-  private readonly lastCell: Int32Array;
-  private readonly movesSinceProgress: Int32Array;
-  /** Bounding box of the cells each robot stood on since its last progress (minX -1: not started). */
-  private readonly boxMinX: Int32Array;
-  private readonly boxMaxX: Int32Array;
-  private readonly boxMinY: Int32Array;
-  private readonly boxMaxY: Int32Array;
   private readonly stuckSince: Int32Array;
-  private readonly episodeOf: Int32Array;
   private readonly memberSince: Int32Array;
   /** Wait edges: up to four robots per blocked robot. */
   private readonly waitsOn: Int32Array;
@@ -193,20 +207,18 @@ export class DeadlockDetector {
       this.cellXY[c * 2 + 1] = Math.floor(c / layout.width);
     }
     this.queueStation = new Int32Array(robots).fill(-1);
-    this.lastProgress = new Int32Array(robots);
+    this.robotState = new Int32Array(robots * stride);
+    for (let r = 0; r < robots; r++) {
+      this.robotState[r * stride + sGoalSeen] = -2;
+      this.robotState[r * stride + sLastCell] = -1;
+      this.robotState[r * stride + sBoxMinX] = -1;
+      this.robotState[r * stride + sEpisodeOf] = -1;
+    }
     this.fields = distances.fields;
-    this.goalProgress = new GoalProgress(robots, this.fields);
+    this.goalProgress = new GoalProgress(robots, this.fields, this.robotState, stride, sGoalProgress);
     this.fieldOf = new Array<DistanceField | null>(robots).fill(null);
     this.fieldGoal = new Int32Array(robots).fill(-1);
-    this.goalSeen = new Int32Array(robots).fill(-2);
-    this.lastCell = new Int32Array(robots).fill(-1);
-    this.movesSinceProgress = new Int32Array(robots);
-    this.boxMinX = new Int32Array(robots).fill(-1);
-    this.boxMaxX = new Int32Array(robots);
-    this.boxMinY = new Int32Array(robots);
-    this.boxMaxY = new Int32Array(robots);
     this.stuckSince = new Int32Array(robots).fill(-1);
-    this.episodeOf = new Int32Array(robots).fill(-1);
     this.memberSince = new Int32Array(robots);
     this.waitsOn = new Int32Array(robots * 4);
     this.waitCount = new Uint8Array(robots);
@@ -233,7 +245,7 @@ export class DeadlockDetector {
 
   /** The episode robot r is in (deadlock or livelock), or -1. */
   episodeOfRobot(robot: number): number {
-    return this.episodeOf[robot];
+    return this.robotState[robot * stride + sEpisodeOf];
   }
 
   /**
@@ -246,9 +258,9 @@ export class DeadlockDetector {
 
   /** The operator moved the robot: it leaves its episode, cleared, and starts afresh. */
   relocated(robot: number, tick: number): void {
-    if (this.episodeOf[robot] >= 0) this.leave(robot, tick, true);
+    if (this.robotState[robot * stride + sEpisodeOf] >= 0) this.leave(robot, tick, true);
     this.resetProgress(robot, tick);
-    this.lastCell[robot] = -1;
+    this.robotState[robot * stride + sLastCell] = -1;
     this.stuckSince[robot] = -1;
   }
 
@@ -273,16 +285,8 @@ export class DeadlockDetector {
     const taskReturn = world.taskReturn;
     const robotCharger = world.robotCharger;
     const status = this.status;
-    const lastCell = this.lastCell;
-    const movesSinceProgress = this.movesSinceProgress;
-    const boxMinX = this.boxMinX;
-    const boxMaxX = this.boxMaxX;
-    const boxMinY = this.boxMinY;
-    const boxMaxY = this.boxMaxY;
+    const state = this.robotState;
     const cellXY = this.cellXY;
-    const goalSeen = this.goalSeen;
-    const lastProgress = this.lastProgress;
-    const episodeOf = this.episodeOf;
     const waitCount = this.waitCount;
     const goalProgress = this.goalProgress;
     const deadlockTicks = this.deadlockTicks;
@@ -306,6 +310,7 @@ export class DeadlockDetector {
     for (let r = 0; r < robots; r++) {
       const cell = cells[r];
       const phase = phases[r];
+      const base = r * stride;
       const fixed =
         phase === phaseHandlingPickup ||
         phase === phaseHandlingDrop ||
@@ -317,22 +322,22 @@ export class DeadlockDetector {
       const to = fixed ? cell : next[r];
       nextOf[r] = to;
 
-      const before = lastCell[r];
+      const before = state[base + sLastCell];
       const moved = before >= 0 && before !== cell;
-      lastCell[r] = cell;
+      state[base + sLastCell] = cell;
       // The box of cells since the last progress changes only when the robot moved (or starts afresh).
-      if (moved || boxMinX[r] < 0) {
-        if (moved) movesSinceProgress[r]++;
+      if (moved || state[base + sBoxMinX] < 0) {
+        if (moved) state[base + sMoves]++;
         const x = cellXY[cell * 2];
         const y = cellXY[cell * 2 + 1];
-        if (boxMinX[r] < 0) {
-          boxMinX[r] = boxMaxX[r] = x;
-          boxMinY[r] = boxMaxY[r] = y;
+        if (state[base + sBoxMinX] < 0) {
+          state[base + sBoxMinX] = state[base + sBoxMaxX] = x;
+          state[base + sBoxMinY] = state[base + sBoxMaxY] = y;
         } else {
-          if (x < boxMinX[r]) boxMinX[r] = x;
-          else if (x > boxMaxX[r]) boxMaxX[r] = x;
-          if (y < boxMinY[r]) boxMinY[r] = y;
-          else if (y > boxMaxY[r]) boxMaxY[r] = y;
+          if (x < state[base + sBoxMinX]) state[base + sBoxMinX] = x;
+          else if (x > state[base + sBoxMaxX]) state[base + sBoxMaxX] = x;
+          if (y < state[base + sBoxMinY]) state[base + sBoxMinY] = y;
+          else if (y > state[base + sBoxMaxY]) state[base + sBoxMaxY] = y;
         }
       }
       const goal =
@@ -345,20 +350,20 @@ export class DeadlockDetector {
               : phase === phaseToCharger
                 ? robotCharger[r]
                 : -1;
-      if (goal !== goalSeen[r]) {
-        goalSeen[r] = goal;
+      if (goal !== state[base + sGoalSeen]) {
+        state[base + sGoalSeen] = goal;
         this.progress(r, tick);
         if (goal >= 0) goalProgress.observe(r, goal, cell, cellXY[cell * 2], cellXY[cell * 2 + 1]); // starts following the new goal
       } else if (goal < 0 || broken[r] === 1) {
         // No goal (idle, handling, charging) or broken down: nothing to progress towards; keep the clock fresh.
-        lastProgress[r] = tick;
-        movesSinceProgress[r] = 0;
+        state[base + sLastProgress] = tick;
+        state[base + sMoves] = 0;
       } else if (moved && goalProgress.observe(r, goal, cell, cellXY[cell * 2], cellXY[cell * 2 + 1])) {
         // this.progress(r, tick), written out: most moving robots progress at every step.
-        lastProgress[r] = tick;
-        movesSinceProgress[r] = 0;
-        boxMinX[r] = -1;
-        if (episodeOf[r] >= 0) this.leave(r, tick, false);
+        state[base + sLastProgress] = tick;
+        state[base + sMoves] = 0;
+        state[base + sBoxMinX] = -1;
+        if (state[base + sEpisodeOf] >= 0) this.leave(r, tick, false);
       }
 
       waitCount[r] = 0;
@@ -368,7 +373,7 @@ export class DeadlockDetector {
         status[r] = WaitStatus.Handling;
         continue;
       }
-      if (goal >= 0 && episodeOf[r] < 0 && tick - lastProgress[r] >= deadlockTicks) candidates[candidateCount++] = r;
+      if (goal >= 0 && state[base + sEpisodeOf] < 0 && tick - state[base + sLastProgress] >= deadlockTicks) candidates[candidateCount++] = r;
       if (to !== cell) {
         status[r] = WaitStatus.Moving;
         continue;
@@ -414,7 +419,7 @@ export class DeadlockDetector {
         continue;
       }
       // Neighbours one step closer: clear bits of the field's ranking (-1: the goal is cut off).
-      const goal = goalSeen[r];
+      const goal = state[r * stride + sGoalSeen];
       let field = this.fieldGoal[r] === goal ? this.fieldOf[r] : null;
       let rank = field === null ? -2 : field.rankAround(cell);
       if (rank === -2) {
@@ -664,9 +669,9 @@ export class DeadlockDetector {
   nextCheckTick(world: World): number {
     let earliest = Infinity;
     for (let r = 0; r < this.robots; r++) {
-      if (this.episodeOf[r] >= 0) continue;
+      if (this.robotState[r * stride + sEpisodeOf] >= 0) continue;
       if (this.stuckSince[r] >= 0) earliest = Math.min(earliest, this.stuckSince[r] + this.deadlockTicks);
-      else if (world.goalOf(r) >= 0) earliest = Math.min(earliest, this.lastProgress[r] + this.deadlockTicks);
+      else if (world.goalOf(r) >= 0) earliest = Math.min(earliest, this.robotState[r * stride + sLastProgress] + this.deadlockTicks);
     }
     if (this.gridlockSince >= 0 && this.gridlockEpisode < 0) earliest = Math.min(earliest, this.gridlockSince + this.deadlockTicks);
     return earliest;
@@ -679,7 +684,7 @@ export class DeadlockDetector {
 
   /** Closes every open episode at the end of the run; returns them without the bookkeeping. */
   finish(endTick: number): DeadlockEpisode[] {
-    for (let r = 0; r < this.robots; r++) if (this.episodeOf[r] >= 0) this.leave(r, endTick, false);
+    for (let r = 0; r < this.robots; r++) if (this.robotState[r * stride + sEpisodeOf] >= 0) this.leave(r, endTick, false);
     if (this.gridlockEpisode >= 0) this.endGridlock(endTick);
     return this.episodes.map(({ active: _active, ...plain }) => ({ ...plain, endTick: plain.endTick < 0 ? endTick : plain.endTick }));
   }
@@ -687,23 +692,23 @@ export class DeadlockDetector {
   // Internals ---------------------------------------------------------------------------
 
   private resetProgress(robot: number, tick: number): void {
-    this.lastProgress[robot] = tick;
-    this.movesSinceProgress[robot] = 0;
-    this.boxMinX[robot] = -1;
+    this.robotState[robot * stride + sLastProgress] = tick;
+    this.robotState[robot * stride + sMoves] = 0;
+    this.robotState[robot * stride + sBoxMinX] = -1;
     this.goalProgress.reset(robot);
-    this.goalSeen[robot] = -2;
+    this.robotState[robot * stride + sGoalSeen] = -2;
   }
 
   private progress(robot: number, tick: number): void {
-    this.lastProgress[robot] = tick;
-    this.movesSinceProgress[robot] = 0;
-    this.boxMinX[robot] = -1;
-    if (this.episodeOf[robot] >= 0) this.leave(robot, tick, false);
+    this.robotState[robot * stride + sLastProgress] = tick;
+    this.robotState[robot * stride + sMoves] = 0;
+    this.robotState[robot * stride + sBoxMinX] = -1;
+    if (this.robotState[robot * stride + sEpisodeOf] >= 0) this.leave(robot, tick, false);
   }
 
   private leave(robot: number, tick: number, cleared: boolean): void {
-    const episode = this.episodes[this.episodeOf[robot]];
-    this.episodeOf[robot] = -1;
+    const episode = this.episodes[this.robotState[robot * stride + sEpisodeOf]];
+    this.robotState[robot * stride + sEpisodeOf] = -1;
     this.members--;
     episode.active.delete(robot);
     if (this.memberSince[robot] >= 0) episode.lostTicks += tick - this.memberSince[robot];
@@ -712,7 +717,7 @@ export class DeadlockDetector {
     let holders = 0;
     for (const r of episode.active) if (this.memberSince[r] >= 0) holders++;
     if (holders === 0) {
-      for (const r of episode.active) this.episodeOf[r] = -1;
+      for (const r of episode.active) this.robotState[r * stride + sEpisodeOf] = -1;
       this.members -= episode.active.size;
       episode.active.clear();
       episode.endTick = tick;
@@ -721,7 +726,7 @@ export class DeadlockDetector {
 
   private join(episodeId: number, robot: number, since: number): void {
     const episode = this.episodes[episodeId];
-    this.episodeOf[robot] = episodeId;
+    this.robotState[robot * stride + sEpisodeOf] = episodeId;
     this.members++;
     this.memberSince[robot] = since;
     episode.active.add(robot);
@@ -738,7 +743,7 @@ export class DeadlockDetector {
   /** Idle members that moved or got a task leave their deadlock. */
   private membersLeave(tick: number, world: World): void {
     for (let r = 0; r < this.robots; r++) {
-      if (this.episodeOf[r] < 0 || this.memberSince[r] >= 0) continue;
+      if (this.robotState[r * stride + sEpisodeOf] < 0 || this.memberSince[r] >= 0) continue;
       if (this.status[r] !== WaitStatus.IdleStill || world.robotPhase[r] !== phaseIdle) this.leave(r, tick, false);
     }
   }
@@ -748,7 +753,7 @@ export class DeadlockDetector {
     const stuck = (r: number) => this.stuckSince[r] >= 0;
     // New closed sets that have stood for deadlockTicks.
     for (let r = 0; r < robots; r++) {
-      if (!stuck(r) || this.episodeOf[r] >= 0 || tick - this.stuckSince[r] < this.deadlockTicks) continue;
+      if (!stuck(r) || this.robotState[r * stride + sEpisodeOf] >= 0 || tick - this.stuckSince[r] < this.deadlockTicks) continue;
       if (this.waitsOnDeadlock(r) >= 0) continue; // joins below
       const id = this.open('deadlock', tick, this.stuckSince[r]);
       clearable.push(id);
@@ -762,7 +767,7 @@ export class DeadlockDetector {
         const x = component[head++];
         for (let k = 0; k < this.waitCount[x]; k++) {
           const y = this.waitsOn[x * 4 + k];
-          if (this.episodeOf[y] >= 0) continue;
+          if (this.robotState[y * stride + sEpisodeOf] >= 0) continue;
           if (stuck(y)) this.join(id, y, this.stuckSince[y]);
           else if (this.status[y] === WaitStatus.IdleStill && world.robotPhase[y] === phaseIdle) this.join(id, y, -1);
           else continue;
@@ -770,7 +775,7 @@ export class DeadlockDetector {
         }
         for (let e = this.predecessorHead[x]; e >= 0; e = this.edgeNext[e]) {
           const p = this.edgeRobot[e];
-          if (this.episodeOf[p] >= 0 || !stuck(p)) continue;
+          if (this.robotState[p * stride + sEpisodeOf] >= 0 || !stuck(p)) continue;
           this.join(id, p, this.stuckSince[p]);
           component[tail++] = p;
         }
@@ -781,7 +786,7 @@ export class DeadlockDetector {
     while (changed) {
       changed = false;
       for (let r = 0; r < robots; r++) {
-        if (!stuck(r) || this.episodeOf[r] >= 0) continue;
+        if (!stuck(r) || this.robotState[r * stride + sEpisodeOf] >= 0) continue;
         const id = this.waitsOnDeadlock(r);
         if (id < 0) continue;
         this.join(id, r, this.stuckSince[r]);
@@ -793,7 +798,7 @@ export class DeadlockDetector {
   /** The deadlock episode of a robot r waits on, or -1. */
   private waitsOnDeadlock(r: number): number {
     for (let k = 0; k < this.waitCount[r]; k++) {
-      const id = this.episodeOf[this.waitsOn[r * 4 + k]];
+      const id = this.robotState[(this.waitsOn[r * 4 + k]) * stride + sEpisodeOf];
       if (id >= 0 && this.episodes[id].kind === 'deadlock' && this.episodes[id].endTick < 0) return id;
     }
     return -1;
@@ -803,14 +808,14 @@ export class DeadlockDetector {
     const neighbors = this.layout.neighbors;
     for (let i = 0; i < candidates; i++) {
       const r = this.livelockCandidates[i];
-      if (this.episodeOf[r] >= 0 || this.stuckSince[r] >= 0 || world.goalOf(r) < 0) continue;
-      const since = this.lastProgress[r];
+      if (this.robotState[r * stride + sEpisodeOf] >= 0 || this.stuckSince[r] >= 0 || world.goalOf(r) < 0) continue;
+      const since = this.robotState[r * stride + sLastProgress];
       const elapsed = tick - since;
-      const moves = this.movesSinceProgress[r];
+      const moves = this.robotState[r * stride + sMoves];
       if (elapsed < this.deadlockTicks || moves * 4 < elapsed) continue;
       // Moving in place: at least two moves per cell of the area it kept to.
-      const area = (this.boxMaxX[r] - this.boxMinX[r] + 1) * (this.boxMaxY[r] - this.boxMinY[r] + 1);
-      if (this.boxMinX[r] < 0 || 2 * area > moves) continue;
+      const area = (this.robotState[r * stride + sBoxMaxX] - this.robotState[r * stride + sBoxMinX] + 1) * (this.robotState[r * stride + sBoxMaxY] - this.robotState[r * stride + sBoxMinY] + 1);
+      if (this.robotState[r * stride + sBoxMinX] < 0 || 2 * area > moves) continue;
       // A goal that served a robot since (or serves one now) is a busy station, not a livelock.
       const goal = world.goalOf(r);
       const atGoal = world.occupant[goal];
@@ -823,7 +828,7 @@ export class DeadlockDetector {
         if (n < 0) continue;
         const other = world.occupant[n];
         if (other < 0) continue;
-        const e = this.episodeOf[other];
+        const e = this.robotState[other * stride + sEpisodeOf];
         if (e >= 0 && this.episodes[e].kind === 'livelock') id = e;
       }
       if (id < 0) {

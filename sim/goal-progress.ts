@@ -17,31 +17,48 @@ import { reachedBit as reachedBitImport, type DistanceField, type DistanceFields
 // moving robot per tick.
 const reachedBit = reachedBitImport;
 
-export class GoalProgress {
-  private readonly goal: Int32Array;
-  private readonly field: (DistanceField | null)[];
-  private readonly cell: Int32Array;
-  /** The field's byte at `cell` (distance mod 4 | reached bit). */
-  private readonly value: Uint8Array;
-  /** Distance relative to the cell where the goal was first seen. */
-  private readonly relative: Int32Array;
-  private readonly best: Int32Array;
+/** Numbers GoalProgress keeps per robot (in its own block, or in a caller's block: see the constructor). */
+export const goalProgressSlots = 5;
+const gGoal = 0;
+/** The cell last observed. */
+const gCell = 1;
+/** The field's byte at that cell (distance mod 4 | reached bit). */
+const gValue = 2;
+/** Distance relative to the cell where the goal was first seen. */
+const gRelative = 3;
+const gBest = 4;
 
+export class GoalProgress {
+  private readonly field: (DistanceField | null)[];
+  /** Per robot, `goalProgressSlots` numbers at `robot * stride + offset` (slots g*, above). */
+  private readonly state: Int32Array;
+  private readonly stride: number;
+  private readonly offset: number;
+
+  /**
+   * `state`, `stride` and `offset`: keep the numbers inside a caller's per-robot blocks (the
+   * deadlock detector packs its own per-robot state with them, so that a robot's state is
+   * one line to fetch); by default in a block of their own.
+   */
   constructor(
     robots: number,
     private readonly fields: DistanceFields,
+    state?: Int32Array,
+    stride = goalProgressSlots,
+    offset = 0,
   ) {
-    this.goal = new Int32Array(robots).fill(-1);
     this.field = new Array<DistanceField | null>(robots).fill(null);
-    this.cell = new Int32Array(robots);
-    this.value = new Uint8Array(robots);
-    this.relative = new Int32Array(robots);
-    this.best = new Int32Array(robots);
+    if (state === undefined) state = new Int32Array(robots * stride);
+    if (offset + goalProgressSlots > stride || state.length < robots * stride) throw new Error('GoalProgress: the shared block is too small');
+    this.state = state;
+    this.stride = stride;
+    this.offset = offset;
+    for (let r = 0; r < robots; r++) state[r * stride + offset + gGoal] = -1;
   }
 
   /** Forgets the robot's goal: its next observation counts as progress. */
   reset(robot: number): void {
-    this.goal[robot] = -1;
+    this.state[robot * this.stride + this.offset + gGoal] = -1;
   }
 
   /**
@@ -50,18 +67,21 @@ export class GoalProgress {
    * deadlock detector: one lookup per moving robot per tick, not two).
    */
   observe(robot: number, goal: number, cell: number, x = cell % this.fields.layout.width, y = Math.floor(cell / this.fields.layout.width)): boolean {
-    if (this.goal[robot] !== goal) {
+    const state = this.state;
+    const base = robot * this.stride + this.offset;
+    if (state[base + gGoal] !== goal) {
       const field = this.fields.to(goal, cell);
-      this.goal[robot] = goal;
+      const value = field.valueAtXY(x, y);
+      state[base + gGoal] = goal;
       this.field[robot] = field;
-      this.cell[robot] = cell;
-      this.value[robot] = field.valueAtXY(x, y);
-      this.relative[robot] = 0;
-      this.best[robot] = 0;
-      return (this.value[robot] & reachedBit) !== 0;
+      state[base + gCell] = cell;
+      state[base + gValue] = value;
+      state[base + gRelative] = 0;
+      state[base + gBest] = 0;
+      return (value & reachedBit) !== 0;
     }
-    if (this.cell[robot] === cell) return false;
-    this.cell[robot] = cell;
+    if (state[base + gCell] === cell) return false;
+    state[base + gCell] = cell;
     let value = this.field[robot]!.valueAtXY(x, y);
     // The window keeps what it covered when it grows, so the previous cell stays covered.
     if (value < 0) {
@@ -69,15 +89,15 @@ export class GoalProgress {
       this.field[robot] = field;
       value = field.valueAtXY(x, y);
     }
-    const before = this.value[robot];
-    this.value[robot] = value;
+    const before = state[base + gValue];
+    state[base + gValue] = value;
     // A robot cut off from its goal has no distance: moving counts as nothing.
     if ((value & reachedBit) === 0 || (before & reachedBit) === 0) return false;
     // Neighbouring cells: the distance changed by exactly one (the grid is bipartite).
-    const relative = this.relative[robot] + (((value - before) & 3) === 1 ? 1 : -1);
-    this.relative[robot] = relative;
-    if (relative < this.best[robot]) {
-      this.best[robot] = relative;
+    const relative = state[base + gRelative] + (((value - before) & 3) === 1 ? 1 : -1);
+    state[base + gRelative] = relative;
+    if (relative < state[base + gBest]) {
+      state[base + gBest] = relative;
       return true;
     }
     return false;

@@ -230,12 +230,18 @@ describe('GoalProgress', () => {
       const height = 6 + Math.floor(random() * 20);
       const { layout } = randomLayout(random, width, height, 0.2);
       if (layout.floorCells.length < 2) continue;
-      const progress = new GoalProgress(1, new DistanceFields(layout, undefined, 1));
+      const fields = new DistanceFields(layout, undefined, 1);
+      const progress = new GoalProgress(1, fields);
+      // The same watch kept inside a caller's per-robot blocks (the deadlock detector's packed
+      // state): robot 1 of 3, blocks of 8 numbers, its slots from 2; the caller's slots stay untouched.
+      const shared = new Int32Array(3 * 8).fill(12345);
+      const packed = new GoalProgress(3, fields, shared, 8, 2);
       let cell = layout.floorCells[Math.floor(random() * layout.floorCells.length)];
       for (let leg = 0; leg < 4; leg++) {
         const goal = layout.floorCells[Math.floor(random() * layout.floorCells.length)];
         // The engine resets the watch whenever a robot's phase (and so its goal) changes.
         progress.reset(0);
+        packed.reset(1);
         const table = distanceTable(layout, goal);
         let best = Infinity;
         for (let t = 0; t < 120; t++) {
@@ -250,10 +256,12 @@ describe('GoalProgress', () => {
           const expected = table[cell] < unreachable && table[cell] < best;
           if (table[cell] < unreachable) best = Math.min(best, table[cell]);
           if (progress.observe(0, goal, cell) !== expected) expect.fail(`floor ${g}, leg ${leg}, tick ${t}: expected progress ${expected}`);
+          if (packed.observe(1, goal, cell) !== expected) expect.fail(`floor ${g}, leg ${leg}, tick ${t}: packed, expected progress ${expected}`);
           if (expected) progressSeen++;
           stepsSeen++;
         }
       }
+      for (let i = 0; i < shared.length; i++) if ((i % 8 < 2 || i % 8 >= 7) && shared[i] !== 12345) expect.fail(`floor ${g}: slot ${i} of the shared block was written`);
     }
     expect(stepsSeen).toBeGreaterThan(20000);
     expect(progressSeen).toBeGreaterThan(2000);
