@@ -60,44 +60,78 @@ import type { DistanceField, DistanceFields } from './distance-field.ts';
 import { GoalProgress } from './goal-progress.ts';
 import type { Layout } from './layout.ts';
 import type { DeadlockEpisode, EpisodeKind } from './metrics.ts';
-import { Phase, isHandling, type World } from './world.ts';
+import { isHandling, type World } from './world.ts';
 
-// Read once: imported bindings are getters under the TypeScript loader, and these are read per robot per step.
-const phaseIdle = Phase.Idle;
-const phaseCharging = Phase.Charging;
-const phaseToPickup = Phase.ToPickup;
-const phaseHandlingPickup = Phase.HandlingPickup;
-const phaseToDrop = Phase.ToDrop;
-const phaseHandlingDrop = Phase.HandlingDrop;
-const phaseToReturn = Phase.ToReturn;
-const phaseHandlingReturn = Phase.HandlingReturn;
-const phaseToCharger = Phase.ToCharger;
+/**
+ * The world's phases (Phase, sim/world.ts) as a const enum, so that the per-robot loop
+ * compares with numbers written into the code: an imported binding is a getter under the
+ * TypeScript loader, and a module-level copy is still a load per comparison.
+ * test/deadlock-detector.test.ts checks that `detectorPhases` equals Phase.
+ */
+const enum P {
+  Idle = 0,
+  ToPickup = 1,
+  HandlingPickup = 2,
+  ToDrop = 3,
+  HandlingDrop = 4,
+  ToReturn = 5,
+  HandlingReturn = 6,
+  ToCharger = 7,
+  Charging = 8,
+  WaitingForCharger = 9,
+}
+/** The detector's copy of the phases, for the test that it equals Phase. */
+export const detectorPhases = {
+  Idle: P.Idle,
+  ToPickup: P.ToPickup,
+  HandlingPickup: P.HandlingPickup,
+  ToDrop: P.ToDrop,
+  HandlingDrop: P.HandlingDrop,
+  ToReturn: P.ToReturn,
+  HandlingReturn: P.HandlingReturn,
+  ToCharger: P.ToCharger,
+  Charging: P.Charging,
+  WaitingForCharger: P.WaitingForCharger,
+} as const;
 const handlingPhase = isHandling;
 
-/** Slots of a robot's block in the detector's packed per-robot state (`robotState`). */
-const stride = 16;
-const sLastCell = 0;
-const sMoves = 1;
-const sBoxMinX = 2;
-const sBoxMaxX = 3;
-const sBoxMinY = 4;
-const sBoxMaxY = 5;
-const sGoalSeen = 6;
-const sLastProgress = 7;
-const sEpisodeOf = 8;
-/** GoalProgress's slots (sim/goal-progress.ts: goalProgressSlots of them). */
-const sGoalProgress = 9;
+/**
+ * Slots of a robot's block in the detector's packed per-robot state (`robotState`). A const
+ * enum: the compiler writes the numbers into the code (a module-level constant would be a
+ * load per access in the per-robot loop).
+ */
+const enum Slot {
+  Stride = 16,
+  LastCell = 0,
+  Moves = 1,
+  BoxMinX = 2,
+  BoxMaxX = 3,
+  BoxMinY = 4,
+  BoxMaxY = 5,
+  GoalSeen = 6,
+  LastProgress = 7,
+  EpisodeOf = 8,
+  /** GoalProgress's slots (sim/goal-progress.ts: goalProgressSlots of them). */
+  GoalProgress = 9,
+}
 
-/** What each robot did over the evaluated step. */
+/** What each robot did over the evaluated step (W: the same numbers, written into the code). */
+const enum W {
+  Handling = 0,
+  Moving = 1,
+  Free = 2,
+  Blocked = 3,
+  IdleStill = 4,
+}
 export const WaitStatus = {
-  Handling: 0,
-  Moving: 1,
+  Handling: W.Handling,
+  Moving: W.Moving,
   /** Holds a goal, stands still although a cell it wants is free (it waits on its policy). */
-  Free: 2,
+  Free: W.Free,
   /** Holds a goal, stands still, and every cell it wants is taken. */
-  Blocked: 3,
+  Blocked: W.Blocked,
   /** No task and not moving. */
-  IdleStill: 4,
+  IdleStill: W.IdleStill,
 } as const;
 
 export interface DetectorEpisode extends DeadlockEpisode {
@@ -123,7 +157,7 @@ export class DeadlockDetector {
 
   private readonly robots: number;
   /**
-   * The per-robot state the detector reads at every evaluation, one block of `stride` numbers
+   * The per-robot state the detector reads at every evaluation, one block of `Slot.Stride` numbers
    * per robot (slots s*, above): the last cell seen, moves and bounding box since the last
    * progress, the goal last seen, the tick of the last progress, the episode it is in (-1:
    * none), and the goal progress's own numbers (sim/goal-progress.ts). The detector runs
@@ -207,15 +241,15 @@ export class DeadlockDetector {
       this.cellXY[c * 2 + 1] = Math.floor(c / layout.width);
     }
     this.queueStation = new Int32Array(robots).fill(-1);
-    this.robotState = new Int32Array(robots * stride);
+    this.robotState = new Int32Array(robots * Slot.Stride);
     for (let r = 0; r < robots; r++) {
-      this.robotState[r * stride + sGoalSeen] = -2;
-      this.robotState[r * stride + sLastCell] = -1;
-      this.robotState[r * stride + sBoxMinX] = -1;
-      this.robotState[r * stride + sEpisodeOf] = -1;
+      this.robotState[r * Slot.Stride + Slot.GoalSeen] = -2;
+      this.robotState[r * Slot.Stride + Slot.LastCell] = -1;
+      this.robotState[r * Slot.Stride + Slot.BoxMinX] = -1;
+      this.robotState[r * Slot.Stride + Slot.EpisodeOf] = -1;
     }
     this.fields = distances.fields;
-    this.goalProgress = new GoalProgress(robots, this.fields, this.robotState, stride, sGoalProgress);
+    this.goalProgress = new GoalProgress(robots, this.fields, this.robotState, Slot.Stride, Slot.GoalProgress);
     this.fieldOf = new Array<DistanceField | null>(robots).fill(null);
     this.fieldGoal = new Int32Array(robots).fill(-1);
     this.stuckSince = new Int32Array(robots).fill(-1);
@@ -245,7 +279,7 @@ export class DeadlockDetector {
 
   /** The episode robot r is in (deadlock or livelock), or -1. */
   episodeOfRobot(robot: number): number {
-    return this.robotState[robot * stride + sEpisodeOf];
+    return this.robotState[robot * Slot.Stride + Slot.EpisodeOf];
   }
 
   /**
@@ -258,9 +292,9 @@ export class DeadlockDetector {
 
   /** The operator moved the robot: it leaves its episode, cleared, and starts afresh. */
   relocated(robot: number, tick: number): void {
-    if (this.robotState[robot * stride + sEpisodeOf] >= 0) this.leave(robot, tick, true);
+    if (this.robotState[robot * Slot.Stride + Slot.EpisodeOf] >= 0) this.leave(robot, tick, true);
     this.resetProgress(robot, tick);
-    this.robotState[robot * stride + sLastCell] = -1;
+    this.robotState[robot * Slot.Stride + Slot.LastCell] = -1;
     this.stuckSince[robot] = -1;
   }
 
@@ -310,77 +344,77 @@ export class DeadlockDetector {
     for (let r = 0; r < robots; r++) {
       const cell = cells[r];
       const phase = phases[r];
-      const base = r * stride;
+      const base = r * Slot.Stride;
       const fixed =
-        phase === phaseHandlingPickup ||
-        phase === phaseHandlingDrop ||
-        phase === phaseHandlingReturn ||
-        phase === phaseCharging ||
+        phase === P.HandlingPickup ||
+        phase === P.HandlingDrop ||
+        phase === P.HandlingReturn ||
+        phase === P.Charging ||
         broken[r] === 1 ||
         (turning && turnUntil[r] > now) ||
         (holding && heldUntil[r] > now);
       const to = fixed ? cell : next[r];
       nextOf[r] = to;
 
-      const before = state[base + sLastCell];
+      const before = state[base + Slot.LastCell];
       const moved = before >= 0 && before !== cell;
-      state[base + sLastCell] = cell;
+      state[base + Slot.LastCell] = cell;
       // The box of cells since the last progress changes only when the robot moved (or starts afresh).
-      if (moved || state[base + sBoxMinX] < 0) {
-        if (moved) state[base + sMoves]++;
+      if (moved || state[base + Slot.BoxMinX] < 0) {
+        if (moved) state[base + Slot.Moves]++;
         const x = cellXY[cell * 2];
         const y = cellXY[cell * 2 + 1];
-        if (state[base + sBoxMinX] < 0) {
-          state[base + sBoxMinX] = state[base + sBoxMaxX] = x;
-          state[base + sBoxMinY] = state[base + sBoxMaxY] = y;
+        if (state[base + Slot.BoxMinX] < 0) {
+          state[base + Slot.BoxMinX] = state[base + Slot.BoxMaxX] = x;
+          state[base + Slot.BoxMinY] = state[base + Slot.BoxMaxY] = y;
         } else {
-          if (x < state[base + sBoxMinX]) state[base + sBoxMinX] = x;
-          else if (x > state[base + sBoxMaxX]) state[base + sBoxMaxX] = x;
-          if (y < state[base + sBoxMinY]) state[base + sBoxMinY] = y;
-          else if (y > state[base + sBoxMaxY]) state[base + sBoxMaxY] = y;
+          if (x < state[base + Slot.BoxMinX]) state[base + Slot.BoxMinX] = x;
+          else if (x > state[base + Slot.BoxMaxX]) state[base + Slot.BoxMaxX] = x;
+          if (y < state[base + Slot.BoxMinY]) state[base + Slot.BoxMinY] = y;
+          else if (y > state[base + Slot.BoxMaxY]) state[base + Slot.BoxMaxY] = y;
         }
       }
       const goal =
-        phase === phaseToPickup
+        phase === P.ToPickup
           ? taskPickup[robotTask[r]]
-          : phase === phaseToDrop
+          : phase === P.ToDrop
             ? taskDrop[robotTask[r]]
-            : phase === phaseToReturn
+            : phase === P.ToReturn
               ? taskReturn[robotTask[r]]
-              : phase === phaseToCharger
+              : phase === P.ToCharger
                 ? robotCharger[r]
                 : -1;
-      if (goal !== state[base + sGoalSeen]) {
-        state[base + sGoalSeen] = goal;
+      if (goal !== state[base + Slot.GoalSeen]) {
+        state[base + Slot.GoalSeen] = goal;
         this.progress(r, tick);
         if (goal >= 0) goalProgress.observe(r, goal, cell, cellXY[cell * 2], cellXY[cell * 2 + 1]); // starts following the new goal
       } else if (goal < 0 || broken[r] === 1) {
         // No goal (idle, handling, charging) or broken down: nothing to progress towards; keep the clock fresh.
-        state[base + sLastProgress] = tick;
-        state[base + sMoves] = 0;
+        state[base + Slot.LastProgress] = tick;
+        state[base + Slot.Moves] = 0;
       } else if (moved && goalProgress.observe(r, goal, cell, cellXY[cell * 2], cellXY[cell * 2 + 1])) {
         // this.progress(r, tick), written out: most moving robots progress at every step.
-        state[base + sLastProgress] = tick;
-        state[base + sMoves] = 0;
-        state[base + sBoxMinX] = -1;
-        if (state[base + sEpisodeOf] >= 0) this.leave(r, tick, false);
+        state[base + Slot.LastProgress] = tick;
+        state[base + Slot.Moves] = 0;
+        state[base + Slot.BoxMinX] = -1;
+        if (state[base + Slot.EpisodeOf] >= 0) this.leave(r, tick, false);
       }
 
       waitCount[r] = 0;
-      if (phase === phaseIdle && robotTask[r] < 0 && broken[r] === 0 && stopPending[r] === 0) idle++;
+      if (phase === P.Idle && robotTask[r] < 0 && broken[r] === 0 && stopPending[r] === 0) idle++;
       // Handling, charging, broken down, turning or held back by a delay: in service, a robot others queue behind.
       if (fixed) {
-        status[r] = WaitStatus.Handling;
+        status[r] = W.Handling;
         continue;
       }
-      if (goal >= 0 && state[base + sEpisodeOf] < 0 && tick - state[base + sLastProgress] >= deadlockTicks) candidates[candidateCount++] = r;
+      if (goal >= 0 && state[base + Slot.EpisodeOf] < 0 && tick - state[base + Slot.LastProgress] >= deadlockTicks) candidates[candidateCount++] = r;
       if (to !== cell) {
-        status[r] = WaitStatus.Moving;
+        status[r] = W.Moving;
         continue;
       }
-      if (phase === phaseIdle || goal < 0) {
+      if (phase === P.Idle || goal < 0) {
         // Idle, or queued for a charger: it goes on only when its policy moves it.
-        status[r] = WaitStatus.IdleStill;
+        status[r] = W.IdleStill;
         continue;
       }
       standing[standingCount++] = r;
@@ -409,9 +443,9 @@ export class DeadlockDetector {
       const wish = wanted === null ? -1 : wanted[r];
       if (wish >= 0) {
         const owner = wish === cell ? -1 : this.ownerAt(wish, stamp, useTable);
-        if (owner < 0 || owner === r) status[r] = WaitStatus.Free;
+        if (owner < 0 || owner === r) status[r] = W.Free;
         else {
-          status[r] = WaitStatus.Blocked;
+          status[r] = W.Blocked;
           waitsOn[r * 4] = owner;
           waitCount[r] = 1;
           blockedList[blocked++] = r;
@@ -419,7 +453,7 @@ export class DeadlockDetector {
         continue;
       }
       // Neighbours one step closer: clear bits of the field's ranking (-1: the goal is cut off).
-      const goal = state[r * stride + sGoalSeen];
+      const goal = state[r * Slot.Stride + Slot.GoalSeen];
       let field = this.fieldGoal[r] === goal ? this.fieldOf[r] : null;
       let rank = field === null ? -2 : field.rankAround(cell);
       if (rank === -2) {
@@ -444,9 +478,9 @@ export class DeadlockDetector {
         for (let k = 0; k < count; k++) if (waitsOn[r * 4 + k] === owner) seen = true;
         if (!seen) waitsOn[r * 4 + count++] = owner;
       }
-      if (free || closer === 0) status[r] = WaitStatus.Free;
+      if (free || closer === 0) status[r] = W.Free;
       else {
-        status[r] = WaitStatus.Blocked;
+        status[r] = W.Blocked;
         waitCount[r] = count;
         blockedList[blocked++] = r;
       }
@@ -534,7 +568,7 @@ export class DeadlockDetector {
       for (let i = 0; i < targetCount; i++) {
         const r = targets[i];
         const s = status[r];
-        const sink = pass === 0 ? s === WaitStatus.Handling : s === WaitStatus.Moving || s === WaitStatus.Free;
+        const sink = pass === 0 ? s === W.Handling : s === W.Moving || s === W.Free;
         if (!sink) continue;
         queueStation[r] = pass === 0 ? this.stationOf[cells[r]] : -1;
         queue[tail++] = r;
@@ -543,7 +577,7 @@ export class DeadlockDetector {
         const x = queue[first++];
         for (let e = head[x]; e >= 0; e = edgeNext[e]) {
           const p = edgeRobot[e];
-          if (reached[p] || status[p] !== WaitStatus.Blocked) continue;
+          if (reached[p] || status[p] !== W.Blocked) continue;
           reached[p] = 1;
           queueStation[p] = queueStation[x];
           queue[tail++] = p;
@@ -551,7 +585,7 @@ export class DeadlockDetector {
       }
     }
     // Only blocked robots keep a station mark.
-    for (let i = 0; i < targetCount; i++) if (status[targets[i]] !== WaitStatus.Blocked) queueStation[targets[i]] = -1;
+    for (let i = 0; i < targetCount; i++) if (status[targets[i]] !== W.Blocked) queueStation[targets[i]] = -1;
     for (let i = 0; i < blocked; i++) if (!reached[blockedList[i]]) queueStation[blockedList[i]] = -1;
 
     // Queue time per station (robots queued behind the robot in service there).
@@ -575,7 +609,7 @@ export class DeadlockDetector {
     // evaluation can have been stuck.
     const stuckSince = this.stuckSince;
     const previous = this.previousBlocked;
-    for (let i = 0; i < this.previousBlockedCount; i++) if (status[previous[i]] !== WaitStatus.Blocked) stuckSince[previous[i]] = -1;
+    for (let i = 0; i < this.previousBlockedCount; i++) if (status[previous[i]] !== W.Blocked) stuckSince[previous[i]] = -1;
     let stuckCount = 0;
     for (let i = 0; i < blocked; i++) {
       const r = blockedList[i];
@@ -608,9 +642,9 @@ export class DeadlockDetector {
     const status = this.status;
     const targets = this.targets;
     const targetCount = this.targetCount;
-    const longFixed = (r: number) => world.robotBroken[r] === 1 || world.robotPhase[r] === phaseCharging;
+    const longFixed = (r: number) => world.robotBroken[r] === 1 || world.robotPhase[r] === P.Charging;
     let any = false;
-    for (let i = 0; i < targetCount && !any; i++) if (status[targets[i]] === WaitStatus.Handling && longFixed(targets[i])) any = true;
+    for (let i = 0; i < targetCount && !any; i++) if (status[targets[i]] === W.Handling && longFixed(targets[i])) any = true;
     let count = 0;
     if (any) {
       if (this.reachedElse.length < this.robots) this.reachedElse = new Uint8Array(this.robots);
@@ -623,14 +657,14 @@ export class DeadlockDetector {
       for (let i = 0; i < targetCount; i++) {
         const r = targets[i];
         const s = status[r];
-        if ((s === WaitStatus.Handling && !longFixed(r)) || s === WaitStatus.Moving || s === WaitStatus.Free) queue[tail++] = r;
+        if ((s === W.Handling && !longFixed(r)) || s === W.Moving || s === W.Free) queue[tail++] = r;
       }
       const head = this.predecessorHead;
       while (first < tail) {
         const x = queue[first++];
         for (let e = head[x]; e >= 0; e = this.edgeNext[e]) {
           const p = this.edgeRobot[e];
-          if (other[p] || status[p] !== WaitStatus.Blocked) continue;
+          if (other[p] || status[p] !== W.Blocked) continue;
           other[p] = 1;
           queue[tail++] = p;
         }
@@ -669,9 +703,9 @@ export class DeadlockDetector {
   nextCheckTick(world: World): number {
     let earliest = Infinity;
     for (let r = 0; r < this.robots; r++) {
-      if (this.robotState[r * stride + sEpisodeOf] >= 0) continue;
+      if (this.robotState[r * Slot.Stride + Slot.EpisodeOf] >= 0) continue;
       if (this.stuckSince[r] >= 0) earliest = Math.min(earliest, this.stuckSince[r] + this.deadlockTicks);
-      else if (world.goalOf(r) >= 0) earliest = Math.min(earliest, this.robotState[r * stride + sLastProgress] + this.deadlockTicks);
+      else if (world.goalOf(r) >= 0) earliest = Math.min(earliest, this.robotState[r * Slot.Stride + Slot.LastProgress] + this.deadlockTicks);
     }
     if (this.gridlockSince >= 0 && this.gridlockEpisode < 0) earliest = Math.min(earliest, this.gridlockSince + this.deadlockTicks);
     return earliest;
@@ -684,7 +718,7 @@ export class DeadlockDetector {
 
   /** Closes every open episode at the end of the run; returns them without the bookkeeping. */
   finish(endTick: number): DeadlockEpisode[] {
-    for (let r = 0; r < this.robots; r++) if (this.robotState[r * stride + sEpisodeOf] >= 0) this.leave(r, endTick, false);
+    for (let r = 0; r < this.robots; r++) if (this.robotState[r * Slot.Stride + Slot.EpisodeOf] >= 0) this.leave(r, endTick, false);
     if (this.gridlockEpisode >= 0) this.endGridlock(endTick);
     return this.episodes.map(({ active: _active, ...plain }) => ({ ...plain, endTick: plain.endTick < 0 ? endTick : plain.endTick }));
   }
@@ -692,23 +726,23 @@ export class DeadlockDetector {
   // Internals ---------------------------------------------------------------------------
 
   private resetProgress(robot: number, tick: number): void {
-    this.robotState[robot * stride + sLastProgress] = tick;
-    this.robotState[robot * stride + sMoves] = 0;
-    this.robotState[robot * stride + sBoxMinX] = -1;
+    this.robotState[robot * Slot.Stride + Slot.LastProgress] = tick;
+    this.robotState[robot * Slot.Stride + Slot.Moves] = 0;
+    this.robotState[robot * Slot.Stride + Slot.BoxMinX] = -1;
     this.goalProgress.reset(robot);
-    this.robotState[robot * stride + sGoalSeen] = -2;
+    this.robotState[robot * Slot.Stride + Slot.GoalSeen] = -2;
   }
 
   private progress(robot: number, tick: number): void {
-    this.robotState[robot * stride + sLastProgress] = tick;
-    this.robotState[robot * stride + sMoves] = 0;
-    this.robotState[robot * stride + sBoxMinX] = -1;
-    if (this.robotState[robot * stride + sEpisodeOf] >= 0) this.leave(robot, tick, false);
+    this.robotState[robot * Slot.Stride + Slot.LastProgress] = tick;
+    this.robotState[robot * Slot.Stride + Slot.Moves] = 0;
+    this.robotState[robot * Slot.Stride + Slot.BoxMinX] = -1;
+    if (this.robotState[robot * Slot.Stride + Slot.EpisodeOf] >= 0) this.leave(robot, tick, false);
   }
 
   private leave(robot: number, tick: number, cleared: boolean): void {
-    const episode = this.episodes[this.robotState[robot * stride + sEpisodeOf]];
-    this.robotState[robot * stride + sEpisodeOf] = -1;
+    const episode = this.episodes[this.robotState[robot * Slot.Stride + Slot.EpisodeOf]];
+    this.robotState[robot * Slot.Stride + Slot.EpisodeOf] = -1;
     this.members--;
     episode.active.delete(robot);
     if (this.memberSince[robot] >= 0) episode.lostTicks += tick - this.memberSince[robot];
@@ -717,7 +751,7 @@ export class DeadlockDetector {
     let holders = 0;
     for (const r of episode.active) if (this.memberSince[r] >= 0) holders++;
     if (holders === 0) {
-      for (const r of episode.active) this.robotState[r * stride + sEpisodeOf] = -1;
+      for (const r of episode.active) this.robotState[r * Slot.Stride + Slot.EpisodeOf] = -1;
       this.members -= episode.active.size;
       episode.active.clear();
       episode.endTick = tick;
@@ -726,7 +760,7 @@ export class DeadlockDetector {
 
   private join(episodeId: number, robot: number, since: number): void {
     const episode = this.episodes[episodeId];
-    this.robotState[robot * stride + sEpisodeOf] = episodeId;
+    this.robotState[robot * Slot.Stride + Slot.EpisodeOf] = episodeId;
     this.members++;
     this.memberSince[robot] = since;
     episode.active.add(robot);
@@ -743,8 +777,8 @@ export class DeadlockDetector {
   /** Idle members that moved or got a task leave their deadlock. */
   private membersLeave(tick: number, world: World): void {
     for (let r = 0; r < this.robots; r++) {
-      if (this.robotState[r * stride + sEpisodeOf] < 0 || this.memberSince[r] >= 0) continue;
-      if (this.status[r] !== WaitStatus.IdleStill || world.robotPhase[r] !== phaseIdle) this.leave(r, tick, false);
+      if (this.robotState[r * Slot.Stride + Slot.EpisodeOf] < 0 || this.memberSince[r] >= 0) continue;
+      if (this.status[r] !== W.IdleStill || world.robotPhase[r] !== P.Idle) this.leave(r, tick, false);
     }
   }
 
@@ -753,7 +787,7 @@ export class DeadlockDetector {
     const stuck = (r: number) => this.stuckSince[r] >= 0;
     // New closed sets that have stood for deadlockTicks.
     for (let r = 0; r < robots; r++) {
-      if (!stuck(r) || this.robotState[r * stride + sEpisodeOf] >= 0 || tick - this.stuckSince[r] < this.deadlockTicks) continue;
+      if (!stuck(r) || this.robotState[r * Slot.Stride + Slot.EpisodeOf] >= 0 || tick - this.stuckSince[r] < this.deadlockTicks) continue;
       if (this.waitsOnDeadlock(r) >= 0) continue; // joins below
       const id = this.open('deadlock', tick, this.stuckSince[r]);
       clearable.push(id);
@@ -767,15 +801,15 @@ export class DeadlockDetector {
         const x = component[head++];
         for (let k = 0; k < this.waitCount[x]; k++) {
           const y = this.waitsOn[x * 4 + k];
-          if (this.robotState[y * stride + sEpisodeOf] >= 0) continue;
+          if (this.robotState[y * Slot.Stride + Slot.EpisodeOf] >= 0) continue;
           if (stuck(y)) this.join(id, y, this.stuckSince[y]);
-          else if (this.status[y] === WaitStatus.IdleStill && world.robotPhase[y] === phaseIdle) this.join(id, y, -1);
+          else if (this.status[y] === W.IdleStill && world.robotPhase[y] === P.Idle) this.join(id, y, -1);
           else continue;
           component[tail++] = y;
         }
         for (let e = this.predecessorHead[x]; e >= 0; e = this.edgeNext[e]) {
           const p = this.edgeRobot[e];
-          if (this.robotState[p * stride + sEpisodeOf] >= 0 || !stuck(p)) continue;
+          if (this.robotState[p * Slot.Stride + Slot.EpisodeOf] >= 0 || !stuck(p)) continue;
           this.join(id, p, this.stuckSince[p]);
           component[tail++] = p;
         }
@@ -786,7 +820,7 @@ export class DeadlockDetector {
     while (changed) {
       changed = false;
       for (let r = 0; r < robots; r++) {
-        if (!stuck(r) || this.robotState[r * stride + sEpisodeOf] >= 0) continue;
+        if (!stuck(r) || this.robotState[r * Slot.Stride + Slot.EpisodeOf] >= 0) continue;
         const id = this.waitsOnDeadlock(r);
         if (id < 0) continue;
         this.join(id, r, this.stuckSince[r]);
@@ -798,7 +832,7 @@ export class DeadlockDetector {
   /** The deadlock episode of a robot r waits on, or -1. */
   private waitsOnDeadlock(r: number): number {
     for (let k = 0; k < this.waitCount[r]; k++) {
-      const id = this.robotState[(this.waitsOn[r * 4 + k]) * stride + sEpisodeOf];
+      const id = this.robotState[(this.waitsOn[r * 4 + k]) * Slot.Stride + Slot.EpisodeOf];
       if (id >= 0 && this.episodes[id].kind === 'deadlock' && this.episodes[id].endTick < 0) return id;
     }
     return -1;
@@ -808,14 +842,14 @@ export class DeadlockDetector {
     const neighbors = this.layout.neighbors;
     for (let i = 0; i < candidates; i++) {
       const r = this.livelockCandidates[i];
-      if (this.robotState[r * stride + sEpisodeOf] >= 0 || this.stuckSince[r] >= 0 || world.goalOf(r) < 0) continue;
-      const since = this.robotState[r * stride + sLastProgress];
+      if (this.robotState[r * Slot.Stride + Slot.EpisodeOf] >= 0 || this.stuckSince[r] >= 0 || world.goalOf(r) < 0) continue;
+      const since = this.robotState[r * Slot.Stride + Slot.LastProgress];
       const elapsed = tick - since;
-      const moves = this.robotState[r * stride + sMoves];
+      const moves = this.robotState[r * Slot.Stride + Slot.Moves];
       if (elapsed < this.deadlockTicks || moves * 4 < elapsed) continue;
       // Moving in place: at least two moves per cell of the area it kept to.
-      const area = (this.robotState[r * stride + sBoxMaxX] - this.robotState[r * stride + sBoxMinX] + 1) * (this.robotState[r * stride + sBoxMaxY] - this.robotState[r * stride + sBoxMinY] + 1);
-      if (this.robotState[r * stride + sBoxMinX] < 0 || 2 * area > moves) continue;
+      const area = (this.robotState[r * Slot.Stride + Slot.BoxMaxX] - this.robotState[r * Slot.Stride + Slot.BoxMinX] + 1) * (this.robotState[r * Slot.Stride + Slot.BoxMaxY] - this.robotState[r * Slot.Stride + Slot.BoxMinY] + 1);
+      if (this.robotState[r * Slot.Stride + Slot.BoxMinX] < 0 || 2 * area > moves) continue;
       // A goal that served a robot since (or serves one now) is a busy station, not a livelock.
       const goal = world.goalOf(r);
       const atGoal = world.occupant[goal];
@@ -828,7 +862,7 @@ export class DeadlockDetector {
         if (n < 0) continue;
         const other = world.occupant[n];
         if (other < 0) continue;
-        const e = this.robotState[other * stride + sEpisodeOf];
+        const e = this.robotState[other * Slot.Stride + Slot.EpisodeOf];
         if (e >= 0 && this.episodes[e].kind === 'livelock') id = e;
       }
       if (id < 0) {
@@ -851,7 +885,7 @@ export class DeadlockDetector {
     const id = this.open('gridlock', tick, this.gridlockSince);
     const episode = this.episodes[id];
     for (let r = 0; r < this.robots; r++) {
-      if (world.robotPhase[r] !== phaseIdle) continue;
+      if (world.robotPhase[r] !== P.Idle) continue;
       episode.members.push(r);
       episode.active.add(r);
     }

@@ -19,18 +19,21 @@ const reachedBit = reachedBitImport;
 
 /** Numbers GoalProgress keeps per robot (in its own block, or in a caller's block: see the constructor). */
 export const goalProgressSlots = 5;
-const gGoal = 0;
-/** The cell last observed. */
-const gCell = 1;
-/** The field's byte at that cell (distance mod 4 | reached bit). */
-const gValue = 2;
-/** Distance relative to the cell where the goal was first seen. */
-const gRelative = 3;
-const gBest = 4;
+/** Slots of a robot's numbers (a const enum: the numbers are written into the code). */
+const enum G {
+  Goal = 0,
+  /** The cell last observed. */
+  Cell = 1,
+  /** The field's byte at that cell (distance mod 4 | reached bit). */
+  Value = 2,
+  /** Distance relative to the cell where the goal was first seen. */
+  Relative = 3,
+  Best = 4,
+}
 
 export class GoalProgress {
   private readonly field: (DistanceField | null)[];
-  /** Per robot, `goalProgressSlots` numbers at `robot * stride + offset` (slots g*, above). */
+  /** Per robot, `goalProgressSlots` numbers at `robot * stride + offset` (slots G, above). */
   private readonly state: Int32Array;
   private readonly stride: number;
   private readonly offset: number;
@@ -53,12 +56,12 @@ export class GoalProgress {
     this.state = state;
     this.stride = stride;
     this.offset = offset;
-    for (let r = 0; r < robots; r++) state[r * stride + offset + gGoal] = -1;
+    for (let r = 0; r < robots; r++) state[r * stride + offset + G.Goal] = -1;
   }
 
   /** Forgets the robot's goal: its next observation counts as progress. */
   reset(robot: number): void {
-    this.state[robot * this.stride + this.offset + gGoal] = -1;
+    this.state[robot * this.stride + this.offset + G.Goal] = -1;
   }
 
   /**
@@ -69,19 +72,19 @@ export class GoalProgress {
   observe(robot: number, goal: number, cell: number, x = cell % this.fields.layout.width, y = Math.floor(cell / this.fields.layout.width)): boolean {
     const state = this.state;
     const base = robot * this.stride + this.offset;
-    if (state[base + gGoal] !== goal) {
+    if (state[base + G.Goal] !== goal) {
       const field = this.fields.to(goal, cell);
       const value = field.valueAtXY(x, y);
-      state[base + gGoal] = goal;
+      state[base + G.Goal] = goal;
       this.field[robot] = field;
-      state[base + gCell] = cell;
-      state[base + gValue] = value;
-      state[base + gRelative] = 0;
-      state[base + gBest] = 0;
+      state[base + G.Cell] = cell;
+      state[base + G.Value] = value;
+      state[base + G.Relative] = 0;
+      state[base + G.Best] = 0;
       return (value & reachedBit) !== 0;
     }
-    if (state[base + gCell] === cell) return false;
-    state[base + gCell] = cell;
+    if (state[base + G.Cell] === cell) return false;
+    state[base + G.Cell] = cell;
     let value = this.field[robot]!.valueAtXY(x, y);
     // The window keeps what it covered when it grows, so the previous cell stays covered.
     if (value < 0) {
@@ -89,15 +92,15 @@ export class GoalProgress {
       this.field[robot] = field;
       value = field.valueAtXY(x, y);
     }
-    const before = state[base + gValue];
-    state[base + gValue] = value;
+    const before = state[base + G.Value];
+    state[base + G.Value] = value;
     // A robot cut off from its goal has no distance: moving counts as nothing.
     if ((value & reachedBit) === 0 || (before & reachedBit) === 0) return false;
     // Neighbouring cells: the distance changed by exactly one (the grid is bipartite).
-    const relative = state[base + gRelative] + (((value - before) & 3) === 1 ? 1 : -1);
-    state[base + gRelative] = relative;
-    if (relative < state[base + gBest]) {
-      state[base + gBest] = relative;
+    const relative = state[base + G.Relative] + (((value - before) & 3) === 1 ? 1 : -1);
+    state[base + G.Relative] = relative;
+    if (relative < state[base + G.Best]) {
+      state[base + G.Best] = relative;
       return true;
     }
     return false;

@@ -9,7 +9,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import path from 'node:path';
-import { DeadlockDetector, WaitStatus } from '../sim/deadlock-detector.ts';
+import { DeadlockDetector, WaitStatus, detectorPhases } from '../sim/deadlock-detector.ts';
 import { DistanceTables } from '../sim/distance-table.ts';
 import { CellKind, parseLayout } from '../sim/layout.ts';
 import { Phase, TaskState, World } from '../sim/world.ts';
@@ -55,6 +55,11 @@ function standStill(world: World, detector: DeadlockDetector, from: number, to: 
 const kinds = (detector: DeadlockDetector, endTick: number) => detector.finish(endTick).map((e) => e.kind);
 
 describe('wait-for graph on hand-built positions', () => {
+  it("the detector's own copy of the phases (written into its per-robot loop) is the world's", () => {
+    expect(detectorPhases).toEqual(Phase);
+  });
+
+
   it('a queue behind a robot in service at a station is queue time, never an episode', () => {
     // Robots 1..3 stand in line for the pickup at 7:1, where robot 0 is loading for 300 ticks.
     const { world, detector, queued, stationOf, at } = handWorld(
