@@ -162,6 +162,11 @@ export class DistanceField {
 
 export class DistanceFields {
   private readonly cache = new Map<number, DistanceField>();
+  /**
+   * The cached field per goal cell (null: none), the same entries as `cache`: the lookup of
+   * every call is an array read, the Map keeps only the recency order for eviction.
+   */
+  private readonly byGoal: (DistanceField | null)[];
   private cachedBytes = 0;
   private readonly cellX: Int32Array;
   private readonly cellY: Int32Array;
@@ -192,6 +197,7 @@ export class DistanceFields {
   ) {
     this.cellX = new Int32Array(layout.cellCount);
     this.cellY = new Int32Array(layout.cellCount);
+    this.byGoal = new Array<DistanceField | null>(layout.cellCount).fill(null);
     for (let c = 0; c < layout.cellCount; c++) {
       this.cellX[c] = c % layout.width;
       this.cellY[c] = Math.floor(c / layout.width);
@@ -207,13 +213,14 @@ export class DistanceFields {
   /** Forgets every cached field (after the caller changed `passable`); holders keep theirs. */
   clear(): void {
     this.cache.clear();
+    this.byGoal.fill(null);
     this.cachedBytes = 0;
   }
 
   /** The field of `goal` covering `near` and its neighbours, built or enlarged when needed. */
   to(goal: number, near: number): DistanceField {
-    const cached = this.cache.get(goal);
-    if (cached && cached.coversAround(near)) {
+    const cached = this.byGoal[goal];
+    if (cached !== null && cached.coversAround(near)) {
       // Refresh recency only when the cache can overflow; a Map keeps insertion order.
       if (this.cachedBytes + cached.bytes > this.budgetBytes) {
         this.cache.delete(goal);
@@ -225,7 +232,7 @@ export class DistanceFields {
     let y0 = Math.min(this.cellY[goal], this.cellY[near]);
     let x1 = Math.max(this.cellX[goal], this.cellX[near]);
     let y1 = Math.max(this.cellY[goal], this.cellY[near]);
-    if (cached) {
+    if (cached !== null) {
       this.enlargements++;
       // Keep what the old window covered, so robots already inside it stay covered.
       x0 = Math.min(x0, cached.x0);
@@ -234,14 +241,17 @@ export class DistanceFields {
       y1 = Math.max(y1, cached.y0 + cached.height - 1);
       this.cachedBytes -= cached.bytes;
       this.cache.delete(goal);
+      this.byGoal[goal] = null;
     }
     const field = this.build(goal, x0, y0, x1, y1);
     while (this.cache.size > 0 && this.cachedBytes + field.bytes > this.budgetBytes) {
       const oldest = this.cache.keys().next().value as number;
       this.cachedBytes -= this.cache.get(oldest)!.bytes;
       this.cache.delete(oldest);
+      this.byGoal[oldest] = null;
     }
     this.cache.set(goal, field);
+    this.byGoal[goal] = field;
     this.cachedBytes += field.bytes;
     return field;
   }

@@ -220,6 +220,35 @@ describe('DistanceFields (windowed breadth-first fields, distance mod 4)', () =>
   });
 });
 
+describe('DistanceFields cache', () => {
+  it('evicts the least recently built fields beyond its byte budget, rebuilds them when asked again, and keeps the rest', () => {
+    // An open 8 x 5 floor: every field covers it whole (the margin exceeds the floor), 10 x 7
+    // padded bytes; the budget is the floor of 16 whole-floor fields.
+    const layout = parseLayout(Array.from({ length: 5 }, () => '........').join('\n'));
+    const fields = new DistanceFields(layout, 1);
+    const first = new Map<number, DistanceField>();
+    for (const goal of layout.floorCells) {
+      const field = fields.to(goal, layout.floorCells[layout.floorCells.length - 1 - goal]);
+      first.set(goal, field);
+      expectAgrees(layout, field, distanceTable(layout, goal));
+    }
+    expect(fields.builds).toBe(40);
+    expect(fields.size).toBe(16);
+    // The 16 most recent are cached: asked again, the same objects, nothing built.
+    for (const goal of layout.floorCells.slice(24)) expect(fields.to(goal, 0)).toBe(first.get(goal));
+    expect(fields.builds).toBe(40);
+    // An evicted one is built again (exact), and evicts the oldest cached one (goal 24).
+    const again = fields.to(0, 39);
+    expect(again).not.toBe(first.get(0));
+    expectAgrees(layout, again, distanceTable(layout, 0));
+    expect(fields.builds).toBe(41);
+    expect(fields.to(25, 0)).toBe(first.get(25));
+    expect(fields.to(24, 0)).not.toBe(first.get(24));
+    expect(fields.builds).toBe(42);
+    expect(fields.size).toBe(16);
+  });
+});
+
 describe('GoalProgress', () => {
   it('reports progress exactly when the true distance to the goal reaches a new minimum, on random walks', () => {
     const random = seedrandom('goal-progress');
