@@ -290,7 +290,9 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
     released++;
     metrics.released(t, loadedCells(pickup, drop));
     taskTiming.released(t);
-    for (const c of [pickup, drop]) if (stationOf[c] >= 0) metrics.stationTaskReleased(stationOf[c]);
+    // Both endpoints, pickup first (no list per release).
+    if (stationOf[pickup] >= 0) metrics.stationTaskReleased(stationOf[pickup]);
+    if (stationOf[drop] >= 0) metrics.stationTaskReleased(stationOf[drop]);
     const ws = workStation(pickup, drop);
     if (ws >= 0) metrics.stationWorkChange(ws, t, 1, 0);
     policyDirty = true;
