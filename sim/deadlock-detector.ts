@@ -63,12 +63,12 @@ import type { DeadlockEpisode, EpisodeKind } from './metrics.ts';
 import { isHandling, type World } from './world.ts';
 
 /**
- * The world's phases (Phase, sim/world.ts) as a const enum, so that the per-robot loop
- * compares with numbers written into the code: an imported binding is a getter under the
+ * The world's phases (Phase, sim/world.ts) as a const enum, so that the per-robot loops (here
+ * and the engine's motion step) compare with numbers written into the code: an imported binding is a getter under the
  * TypeScript loader, and a module-level copy is still a load per comparison.
  * test/deadlock-detector.test.ts checks that `detectorPhases` equals Phase.
  */
-const enum P {
+export const enum PhaseCode {
   Idle = 0,
   ToPickup = 1,
   HandlingPickup = 2,
@@ -82,16 +82,16 @@ const enum P {
 }
 /** The detector's copy of the phases, for the test that it equals Phase. */
 export const detectorPhases = {
-  Idle: P.Idle,
-  ToPickup: P.ToPickup,
-  HandlingPickup: P.HandlingPickup,
-  ToDrop: P.ToDrop,
-  HandlingDrop: P.HandlingDrop,
-  ToReturn: P.ToReturn,
-  HandlingReturn: P.HandlingReturn,
-  ToCharger: P.ToCharger,
-  Charging: P.Charging,
-  WaitingForCharger: P.WaitingForCharger,
+  Idle: PhaseCode.Idle,
+  ToPickup: PhaseCode.ToPickup,
+  HandlingPickup: PhaseCode.HandlingPickup,
+  ToDrop: PhaseCode.ToDrop,
+  HandlingDrop: PhaseCode.HandlingDrop,
+  ToReturn: PhaseCode.ToReturn,
+  HandlingReturn: PhaseCode.HandlingReturn,
+  ToCharger: PhaseCode.ToCharger,
+  Charging: PhaseCode.Charging,
+  WaitingForCharger: PhaseCode.WaitingForCharger,
 } as const;
 const handlingPhase = isHandling;
 
@@ -346,10 +346,10 @@ export class DeadlockDetector {
       const phase = phases[r];
       const base = r * Slot.Stride;
       const fixed =
-        phase === P.HandlingPickup ||
-        phase === P.HandlingDrop ||
-        phase === P.HandlingReturn ||
-        phase === P.Charging ||
+        phase === PhaseCode.HandlingPickup ||
+        phase === PhaseCode.HandlingDrop ||
+        phase === PhaseCode.HandlingReturn ||
+        phase === PhaseCode.Charging ||
         broken[r] === 1 ||
         (turning && turnUntil[r] > now) ||
         (holding && heldUntil[r] > now);
@@ -375,13 +375,13 @@ export class DeadlockDetector {
         }
       }
       const goal =
-        phase === P.ToPickup
+        phase === PhaseCode.ToPickup
           ? taskPickup[robotTask[r]]
-          : phase === P.ToDrop
+          : phase === PhaseCode.ToDrop
             ? taskDrop[robotTask[r]]
-            : phase === P.ToReturn
+            : phase === PhaseCode.ToReturn
               ? taskReturn[robotTask[r]]
-              : phase === P.ToCharger
+              : phase === PhaseCode.ToCharger
                 ? robotCharger[r]
                 : -1;
       if (goal !== state[base + Slot.GoalSeen]) {
@@ -401,7 +401,7 @@ export class DeadlockDetector {
       }
 
       waitCount[r] = 0;
-      if (phase === P.Idle && robotTask[r] < 0 && broken[r] === 0 && stopPending[r] === 0) idle++;
+      if (phase === PhaseCode.Idle && robotTask[r] < 0 && broken[r] === 0 && stopPending[r] === 0) idle++;
       // Handling, charging, broken down, turning or held back by a delay: in service, a robot others queue behind.
       if (fixed) {
         status[r] = W.Handling;
@@ -412,7 +412,7 @@ export class DeadlockDetector {
         status[r] = W.Moving;
         continue;
       }
-      if (phase === P.Idle || goal < 0) {
+      if (phase === PhaseCode.Idle || goal < 0) {
         // Idle, or queued for a charger: it goes on only when its policy moves it.
         status[r] = W.IdleStill;
         continue;
@@ -642,7 +642,7 @@ export class DeadlockDetector {
     const status = this.status;
     const targets = this.targets;
     const targetCount = this.targetCount;
-    const longFixed = (r: number) => world.robotBroken[r] === 1 || world.robotPhase[r] === P.Charging;
+    const longFixed = (r: number) => world.robotBroken[r] === 1 || world.robotPhase[r] === PhaseCode.Charging;
     let any = false;
     for (let i = 0; i < targetCount && !any; i++) if (status[targets[i]] === W.Handling && longFixed(targets[i])) any = true;
     let count = 0;
@@ -778,7 +778,7 @@ export class DeadlockDetector {
   private membersLeave(tick: number, world: World): void {
     for (let r = 0; r < this.robots; r++) {
       if (this.robotState[r * Slot.Stride + Slot.EpisodeOf] < 0 || this.memberSince[r] >= 0) continue;
-      if (this.status[r] !== W.IdleStill || world.robotPhase[r] !== P.Idle) this.leave(r, tick, false);
+      if (this.status[r] !== W.IdleStill || world.robotPhase[r] !== PhaseCode.Idle) this.leave(r, tick, false);
     }
   }
 
@@ -803,7 +803,7 @@ export class DeadlockDetector {
           const y = this.waitsOn[x * 4 + k];
           if (this.robotState[y * Slot.Stride + Slot.EpisodeOf] >= 0) continue;
           if (stuck(y)) this.join(id, y, this.stuckSince[y]);
-          else if (this.status[y] === W.IdleStill && world.robotPhase[y] === P.Idle) this.join(id, y, -1);
+          else if (this.status[y] === W.IdleStill && world.robotPhase[y] === PhaseCode.Idle) this.join(id, y, -1);
           else continue;
           component[tail++] = y;
         }
@@ -885,7 +885,7 @@ export class DeadlockDetector {
     const id = this.open('gridlock', tick, this.gridlockSince);
     const episode = this.episodes[id];
     for (let r = 0; r < this.robots; r++) {
-      if (world.robotPhase[r] !== P.Idle) continue;
+      if (world.robotPhase[r] !== PhaseCode.Idle) continue;
       episode.members.push(r);
       episode.active.add(r);
     }

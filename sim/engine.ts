@@ -38,7 +38,7 @@ import { World, Phase, TaskState, isHandling, isLoaded, type TaskStateCounts } f
 import type { Policy, PolicyFactory } from './policy.ts';
 import { CollisionValidator } from './validator.ts';
 import { MetricsRecorder, type RecordedMetrics } from './metrics.ts';
-import { DeadlockDetector } from './deadlock-detector.ts';
+import { DeadlockDetector, PhaseCode } from './deadlock-detector.ts';
 import { ArrivalProcess, makePointChooser } from './demand.ts';
 import { StationHandling } from './station-handling.ts';
 import { Upkeep, UpkeepCategory } from './upkeep.ts';
@@ -51,15 +51,20 @@ import { MoveDelays } from './move-delays.ts';
 
 // Read once: imported bindings are getters under the TypeScript loader (measured: 4-6% of a
 // token-passing run went to them), and these are read per robot per tick.
-const phaseIdle = Phase.Idle;
-const phaseToPickup = Phase.ToPickup;
-const phaseToDrop = Phase.ToDrop;
-const phaseToReturn = Phase.ToReturn;
-const phaseToCharger = Phase.ToCharger;
 const handlingPhase = isHandling;
 const loadedPhase = isLoaded;
 
-const EventKind = { Motion: 0, HandlingDone: 1, Release: 2, Recover: 3, Wake: 4, Check: 5, Upkeep: 6, End: 7 } as const;
+/** Event kinds, also their priority within a tick (a const enum: numbers in the code, no load per event). */
+const enum EventKind {
+  Motion = 0,
+  HandlingDone = 1,
+  Release = 2,
+  Recover = 3,
+  Wake = 4,
+  Check = 5,
+  Upkeep = 6,
+  End = 7,
+}
 
 /** Station groups: where work queues (pickups; pick stations in round trips), and drops. */
 export const StationGroup = { Pickup: 0, Drop: 1 } as const;
@@ -355,7 +360,7 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
       const broken = world.robotBroken;
       const stopPending = world.robotStopPending;
       let idle = 0;
-      for (let r = 0; r < robots; r++) if (phases[r] === phaseIdle && robotTask[r] < 0 && broken[r] === 0 && stopPending[r] === 0) idle++;
+      for (let r = 0; r < robots; r++) if (phases[r] === PhaseCode.Idle && robotTask[r] < 0 && broken[r] === 0 && stopPending[r] === 0) idle++;
       if (idle === 0) return false;
       poolDepth = Math.min(rule.maxDepth, poolDepth! + idle);
       topUp(t);
@@ -629,7 +634,7 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
       if (upkeepCategory !== null && upkeepCategory[r] !== UpkeepCategory.None) continue;
       const phase = world.robotPhase[r];
       if (handlingPhase(phase)) handling++;
-      else if (phase !== phaseIdle) {
+      else if (phase !== PhaseCode.Idle) {
         waiting++;
         cellWaiting[world.robotCell[r]] += to - from;
       } else parked++;
@@ -687,7 +692,7 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
             // Turning in place is travel (Groover's cycle time counts it in the travel term).
             if (loadedPhase(phase)) loaded++;
             else empty++;
-          } else if (phase === phaseIdle) parked++;
+          } else if (phase === PhaseCode.Idle) parked++;
           else {
             waiting++;
             cellWaiting[from]++;
@@ -702,13 +707,13 @@ export function runReplication(setup: SimulationSetup, replication: number, hook
       // Every robot marks its cell, so that the highest-numbered robot of a cell holds it (as a separate pass would).
       occupant[to] = r;
       const goal =
-        phase === phaseToPickup
+        phase === PhaseCode.ToPickup
           ? taskPickup[task]
-          : phase === phaseToDrop
+          : phase === PhaseCode.ToDrop
             ? taskDrop[task]
-            : phase === phaseToReturn
+            : phase === PhaseCode.ToReturn
               ? taskReturn[task]
-              : phase === phaseToCharger
+              : phase === PhaseCode.ToCharger
                 ? charger[r]
                 : -1;
       if (goal >= 0 && to === goal && broken[r] === 0) atGoal[arriving++] = r;
