@@ -495,8 +495,11 @@ export class DeadlockDetector {
     // Setting an array's length calls into the runtime: only when there is something to drop.
     if (clearable.length > 0) clearable.length = 0;
     if (this.members > 0) this.membersLeave(tick, world);
-    if (this.stuckCount > 0) this.findDeadlocks(tick, world, clearable);
-    if (candidateCount > 0) this.findLivelocks(tick, world, clearable, candidateCount);
+    // Called at every evaluation, though they return at once with nobody stuck and no
+    // candidate: a call site first reached late in a run (the first robot stuck) would cost
+    // this whole function a deoptimisation and a second optimising compile.
+    this.findDeadlocks(tick, world, clearable);
+    this.findLivelocks(tick, world, clearable, candidateCount);
     this.findGridlock(tick, world, delivered, idle);
     return result;
   }
@@ -783,6 +786,7 @@ export class DeadlockDetector {
   }
 
   private findDeadlocks(tick: number, world: World, clearable: number[]): void {
+    if (this.stuckCount === 0) return;
     const robots = this.robots;
     const stuck = (r: number) => this.stuckSince[r] >= 0;
     // New closed sets that have stood for deadlockTicks.
