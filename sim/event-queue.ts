@@ -5,6 +5,12 @@
  * Parallel typed arrays, no per-event objects; `clear()` resets the length.
  */
 
+/** The same number, as a 32-bit integer when it is one (any other value as it is; -0 comes back as 0: ticks are never negative). */
+function asSmall(value: number): number {
+  const integer = value | 0;
+  return integer === value ? integer : value;
+}
+
 export class EventQueue {
   private ticks: Float64Array;
   private priorities: Int32Array;
@@ -50,9 +56,14 @@ export class EventQueue {
     this.payloads[i] = payload;
   }
 
-  /** Tick of the next event, or Infinity when empty. */
+  /**
+   * Tick of the next event, or Infinity when empty. An integer tick comes back as a small
+   * integer: a number read from a Float64Array is a heap number in unoptimised code, and a
+   * heap number tick stored in the world (currentTick) and the policies' fields changes those
+   * objects' field representation, deoptimising the code compiled for them.
+   */
   peekTick(): number {
-    return this.size > 0 ? this.ticks[0] : Infinity;
+    return this.size > 0 ? asSmall(this.ticks[0]) : Infinity;
   }
 
   peekKind(): number {
@@ -65,7 +76,7 @@ export class EventQueue {
   lastPayload = 0;
   pop(): boolean {
     if (this.size === 0) return false;
-    this.lastTick = this.ticks[0];
+    this.lastTick = asSmall(this.ticks[0]);
     this.lastKind = this.kinds[0];
     this.lastPayload = this.payloads[0];
     const last = --this.size;

@@ -464,6 +464,17 @@ describe('EventQueue', () => {
     expect(queue.pop()).toBe(false);
     expect(queue.peekTick()).toBe(Infinity);
   });
+
+  it('gives back every tick exactly as scheduled (integers beyond 32 bits, fractions, infinity included)', () => {
+    const queue = new EventQueue();
+    const ticks = [0, 1, 7, 2 ** 31 - 1, 2 ** 31, 2 ** 40 + 3, 2.5, -3, Infinity];
+    for (const t of ticks) queue.schedule(t, 0, 0);
+    for (const t of [...ticks].sort((a, b) => a - b)) {
+      expect(queue.peekTick()).toBe(t);
+      queue.pop();
+      expect(queue.lastTick).toBe(t);
+    }
+  });
 });
 
 describe('CollisionValidator (Stern et al., SoCS 2019 definitions)', () => {
