@@ -128,7 +128,12 @@ export class MetricsRecorder {
    */
   readonly cellWaitingTicks: Float64Array;
 
-  private leadBuffer = new Int32Array(1024);
+  /**
+   * Grows by doubling from a small start: the first growth then comes within the first
+   * deliveries, before the delivery path is optimised, so that later growths run in the
+   * optimised code (a first growth after it deoptimises the engine's handling step).
+   */
+  private leadBuffer = new Int32Array(16);
   private leadCount = 0;
   private inSystem = 0;
   private inSystemSince = 0;
