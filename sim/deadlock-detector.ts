@@ -64,9 +64,9 @@ import { isHandling, type World } from './world.ts';
 
 /**
  * The world's phases (Phase, sim/world.ts) as a const enum, so that the per-robot loops (here
- * and the engine's motion step) compare with numbers written into the code: an imported binding is a getter under the
- * TypeScript loader, and a module-level copy is still a load per comparison.
- * test/deadlock-detector.test.ts checks that `detectorPhases` equals Phase.
+ * and the engine's motion step) compare with numbers written into the code: an imported
+ * binding is a getter under the TypeScript loader, and a module-level copy is still a load
+ * per comparison. test/deadlock-detector.test.ts checks that `detectorPhases` equals Phase.
  */
 export const enum PhaseCode {
   Idle = 0,
@@ -157,10 +157,11 @@ export class DeadlockDetector {
 
   private readonly robots: number;
   /**
-   * The per-robot state the detector reads at every evaluation, one block of `Slot.Stride` numbers
-   * per robot (slots s*, above): the last cell seen, moves and bounding box since the last
-   * progress, the goal last seen, the tick of the last progress, the episode it is in (-1:
-   * none), and the goal progress's own numbers (sim/goal-progress.ts). The detector runs
+   * The per-robot state the detector reads at every evaluation, one block of `Slot.Stride`
+   * numbers per robot (Slot, above): the last cell seen, moves and bounding box of the cells
+   * stood on since the last progress (BoxMinX -1: not started), the goal last seen, the tick
+   * of the last progress, the episode it is in (-1: none), and the goal progress's own
+   * numbers (sim/goal-progress.ts). The detector runs
    * right after the policy's step has filled the caches with its own data: one block per
    * robot is one line to fetch, read in robot order, where an array per number is a line per
    * number.
