@@ -212,8 +212,9 @@ export class DistanceFields {
 
   /** Forgets every cached field (after the caller changed `passable`); holders keep theirs. */
   clear(): void {
+    // Only the cached goals' slots (a caller may clear at every step: PIBT's detour fields).
+    for (const goal of this.cache.keys()) this.byGoal[goal] = null;
     this.cache.clear();
-    this.byGoal.fill(null);
     this.cachedBytes = 0;
   }
 
