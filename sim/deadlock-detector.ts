@@ -101,7 +101,7 @@ const handlingPhase = isHandling;
  * load per access in the per-robot loop).
  */
 const enum Slot {
-  Stride = 16,
+  Stride = 8,
   LastCell = 0,
   Moves = 1,
   BoxMinX = 2,
@@ -110,9 +110,6 @@ const enum Slot {
   BoxMaxY = 5,
   GoalSeen = 6,
   LastProgress = 7,
-  EpisodeOf = 8,
-  /** GoalProgress's slots (sim/goal-progress.ts: goalProgressSlots of them). */
-  GoalProgress = 9,
 }
 
 /** What each robot did over the evaluated step (W: the same numbers, written into the code). */
@@ -159,9 +156,9 @@ export class DeadlockDetector {
   /**
    * The per-robot state the detector reads at every evaluation, one block of `Slot.Stride`
    * numbers per robot (Slot, above): the last cell seen, moves and bounding box of the cells
-   * stood on since the last progress (BoxMinX -1: not started), the goal last seen, the tick
-   * of the last progress, the episode it is in (-1: none), and the goal progress's own
-   * numbers (sim/goal-progress.ts). The detector runs
+   * stood on since the last progress (BoxMinX -1: not started), the goal last seen and the
+   * tick of the last progress (GoalProgress keeps its own numbers in a block per robot of its
+   * own: only moving robots read them). The detector runs
    * right after the policy's step has filled the caches with its own data: one block per
    * robot is one line to fetch, read in robot order, where an array per number is a line per
    * number.
@@ -174,6 +171,11 @@ export class DeadlockDetector {
   private readonly fieldOf: (DistanceField | null)[];
   private readonly fieldGoal: Int32Array;
   private readonly stuckSince: Int32Array;
+  /**
+   * The episode each robot is in (-1: none). Its own array, not a slot of `robotState`: the
+   * passes over every robot while some episode is open (membersLeave) read only this.
+   */
+  private readonly episodeOf: Int32Array;
   private readonly memberSince: Int32Array;
   /** Wait edges: up to four robots per blocked robot. */
   private readonly waitsOn: Int32Array;
@@ -247,10 +249,10 @@ export class DeadlockDetector {
       this.robotState[r * Slot.Stride + Slot.GoalSeen] = -2;
       this.robotState[r * Slot.Stride + Slot.LastCell] = -1;
       this.robotState[r * Slot.Stride + Slot.BoxMinX] = -1;
-      this.robotState[r * Slot.Stride + Slot.EpisodeOf] = -1;
     }
+    this.episodeOf = new Int32Array(robots).fill(-1);
     this.fields = distances.fields;
-    this.goalProgress = new GoalProgress(robots, this.fields, this.robotState, Slot.Stride, Slot.GoalProgress);
+    this.goalProgress = new GoalProgress(robots, this.fields);
     this.fieldOf = new Array<DistanceField | null>(robots).fill(null);
     this.fieldGoal = new Int32Array(robots).fill(-1);
     this.stuckSince = new Int32Array(robots).fill(-1);
@@ -280,7 +282,7 @@ export class DeadlockDetector {
 
   /** The episode robot r is in (deadlock or livelock), or -1. */
   episodeOfRobot(robot: number): number {
-    return this.robotState[robot * Slot.Stride + Slot.EpisodeOf];
+    return this.episodeOf[robot];
   }
 
   /**
@@ -293,7 +295,7 @@ export class DeadlockDetector {
 
   /** The operator moved the robot: it leaves its episode, cleared, and starts afresh. */
   relocated(robot: number, tick: number): void {
-    if (this.robotState[robot * Slot.Stride + Slot.EpisodeOf] >= 0) this.leave(robot, tick, true);
+    if (this.episodeOf[robot] >= 0) this.leave(robot, tick, true);
     this.resetProgress(robot, tick);
     this.robotState[robot * Slot.Stride + Slot.LastCell] = -1;
     this.stuckSince[robot] = -1;
@@ -321,6 +323,7 @@ export class DeadlockDetector {
     const robotCharger = world.robotCharger;
     const status = this.status;
     const state = this.robotState;
+    const episodeOf = this.episodeOf;
     const cellXY = this.cellXY;
     const waitCount = this.waitCount;
     const goalProgress = this.goalProgress;
@@ -398,7 +401,7 @@ export class DeadlockDetector {
         state[base + Slot.LastProgress] = tick;
         state[base + Slot.Moves] = 0;
         state[base + Slot.BoxMinX] = -1;
-        if (state[base + Slot.EpisodeOf] >= 0) this.leave(r, tick, false);
+        if (episodeOf[r] >= 0) this.leave(r, tick, false);
       }
 
       waitCount[r] = 0;
@@ -408,7 +411,7 @@ export class DeadlockDetector {
         status[r] = W.Handling;
         continue;
       }
-      if (goal >= 0 && state[base + Slot.EpisodeOf] < 0 && tick - state[base + Slot.LastProgress] >= deadlockTicks) candidates[candidateCount++] = r;
+      if (goal >= 0 && episodeOf[r] < 0 && tick - state[base + Slot.LastProgress] >= deadlockTicks) candidates[candidateCount++] = r;
       if (to !== cell) {
         status[r] = W.Moving;
         continue;
@@ -707,7 +710,7 @@ export class DeadlockDetector {
   nextCheckTick(world: World): number {
     let earliest = Infinity;
     for (let r = 0; r < this.robots; r++) {
-      if (this.robotState[r * Slot.Stride + Slot.EpisodeOf] >= 0) continue;
+      if (this.episodeOf[r] >= 0) continue;
       if (this.stuckSince[r] >= 0) earliest = Math.min(earliest, this.stuckSince[r] + this.deadlockTicks);
       else if (world.goalOf(r) >= 0) earliest = Math.min(earliest, this.robotState[r * Slot.Stride + Slot.LastProgress] + this.deadlockTicks);
     }
@@ -722,7 +725,7 @@ export class DeadlockDetector {
 
   /** Closes every open episode at the end of the run; returns them without the bookkeeping. */
   finish(endTick: number): DeadlockEpisode[] {
-    for (let r = 0; r < this.robots; r++) if (this.robotState[r * Slot.Stride + Slot.EpisodeOf] >= 0) this.leave(r, endTick, false);
+    for (let r = 0; r < this.robots; r++) if (this.episodeOf[r] >= 0) this.leave(r, endTick, false);
     if (this.gridlockEpisode >= 0) this.endGridlock(endTick);
     return this.episodes.map(({ active: _active, ...plain }) => ({ ...plain, endTick: plain.endTick < 0 ? endTick : plain.endTick }));
   }
@@ -741,12 +744,12 @@ export class DeadlockDetector {
     this.robotState[robot * Slot.Stride + Slot.LastProgress] = tick;
     this.robotState[robot * Slot.Stride + Slot.Moves] = 0;
     this.robotState[robot * Slot.Stride + Slot.BoxMinX] = -1;
-    if (this.robotState[robot * Slot.Stride + Slot.EpisodeOf] >= 0) this.leave(robot, tick, false);
+    if (this.episodeOf[robot] >= 0) this.leave(robot, tick, false);
   }
 
   private leave(robot: number, tick: number, cleared: boolean): void {
-    const episode = this.episodes[this.robotState[robot * Slot.Stride + Slot.EpisodeOf]];
-    this.robotState[robot * Slot.Stride + Slot.EpisodeOf] = -1;
+    const episode = this.episodes[this.episodeOf[robot]];
+    this.episodeOf[robot] = -1;
     this.members--;
     episode.active.delete(robot);
     if (this.memberSince[robot] >= 0) episode.lostTicks += tick - this.memberSince[robot];
@@ -755,7 +758,7 @@ export class DeadlockDetector {
     let holders = 0;
     for (const r of episode.active) if (this.memberSince[r] >= 0) holders++;
     if (holders === 0) {
-      for (const r of episode.active) this.robotState[r * Slot.Stride + Slot.EpisodeOf] = -1;
+      for (const r of episode.active) this.episodeOf[r] = -1;
       this.members -= episode.active.size;
       episode.active.clear();
       episode.endTick = tick;
@@ -764,7 +767,7 @@ export class DeadlockDetector {
 
   private join(episodeId: number, robot: number, since: number): void {
     const episode = this.episodes[episodeId];
-    this.robotState[robot * Slot.Stride + Slot.EpisodeOf] = episodeId;
+    this.episodeOf[robot] = episodeId;
     this.members++;
     this.memberSince[robot] = since;
     episode.active.add(robot);
@@ -781,7 +784,7 @@ export class DeadlockDetector {
   /** Idle members that moved or got a task leave their deadlock. */
   private membersLeave(tick: number, world: World): void {
     for (let r = 0; r < this.robots; r++) {
-      if (this.robotState[r * Slot.Stride + Slot.EpisodeOf] < 0 || this.memberSince[r] >= 0) continue;
+      if (this.episodeOf[r] < 0 || this.memberSince[r] >= 0) continue;
       if (this.status[r] !== W.IdleStill || world.robotPhase[r] !== PhaseCode.Idle) this.leave(r, tick, false);
     }
   }
@@ -792,7 +795,7 @@ export class DeadlockDetector {
     const stuck = (r: number) => this.stuckSince[r] >= 0;
     // New closed sets that have stood for deadlockTicks.
     for (let r = 0; r < robots; r++) {
-      if (!stuck(r) || this.robotState[r * Slot.Stride + Slot.EpisodeOf] >= 0 || tick - this.stuckSince[r] < this.deadlockTicks) continue;
+      if (!stuck(r) || this.episodeOf[r] >= 0 || tick - this.stuckSince[r] < this.deadlockTicks) continue;
       if (this.waitsOnDeadlock(r) >= 0) continue; // joins below
       const id = this.open('deadlock', tick, this.stuckSince[r]);
       clearable.push(id);
@@ -806,7 +809,7 @@ export class DeadlockDetector {
         const x = component[head++];
         for (let k = 0; k < this.waitCount[x]; k++) {
           const y = this.waitsOn[x * 4 + k];
-          if (this.robotState[y * Slot.Stride + Slot.EpisodeOf] >= 0) continue;
+          if (this.episodeOf[y] >= 0) continue;
           if (stuck(y)) this.join(id, y, this.stuckSince[y]);
           else if (this.status[y] === W.IdleStill && world.robotPhase[y] === PhaseCode.Idle) this.join(id, y, -1);
           else continue;
@@ -814,7 +817,7 @@ export class DeadlockDetector {
         }
         for (let e = this.predecessorHead[x]; e >= 0; e = this.edgeNext[e]) {
           const p = this.edgeRobot[e];
-          if (this.robotState[p * Slot.Stride + Slot.EpisodeOf] >= 0 || !stuck(p)) continue;
+          if (this.episodeOf[p] >= 0 || !stuck(p)) continue;
           this.join(id, p, this.stuckSince[p]);
           component[tail++] = p;
         }
@@ -825,7 +828,7 @@ export class DeadlockDetector {
     while (changed) {
       changed = false;
       for (let r = 0; r < robots; r++) {
-        if (!stuck(r) || this.robotState[r * Slot.Stride + Slot.EpisodeOf] >= 0) continue;
+        if (!stuck(r) || this.episodeOf[r] >= 0) continue;
         const id = this.waitsOnDeadlock(r);
         if (id < 0) continue;
         this.join(id, r, this.stuckSince[r]);
@@ -837,7 +840,7 @@ export class DeadlockDetector {
   /** The deadlock episode of a robot r waits on, or -1. */
   private waitsOnDeadlock(r: number): number {
     for (let k = 0; k < this.waitCount[r]; k++) {
-      const id = this.robotState[(this.waitsOn[r * 4 + k]) * Slot.Stride + Slot.EpisodeOf];
+      const id = this.episodeOf[this.waitsOn[r * 4 + k]];
       if (id >= 0 && this.episodes[id].kind === 'deadlock' && this.episodes[id].endTick < 0) return id;
     }
     return -1;
@@ -847,7 +850,7 @@ export class DeadlockDetector {
     const neighbors = this.layout.neighbors;
     for (let i = 0; i < candidates; i++) {
       const r = this.livelockCandidates[i];
-      if (this.robotState[r * Slot.Stride + Slot.EpisodeOf] >= 0 || this.stuckSince[r] >= 0 || world.goalOf(r) < 0) continue;
+      if (this.episodeOf[r] >= 0 || this.stuckSince[r] >= 0 || world.goalOf(r) < 0) continue;
       const since = this.robotState[r * Slot.Stride + Slot.LastProgress];
       const elapsed = tick - since;
       const moves = this.robotState[r * Slot.Stride + Slot.Moves];
@@ -867,7 +870,7 @@ export class DeadlockDetector {
         if (n < 0) continue;
         const other = world.occupant[n];
         if (other < 0) continue;
-        const e = this.robotState[other * Slot.Stride + Slot.EpisodeOf];
+        const e = this.episodeOf[other];
         if (e >= 0 && this.episodes[e].kind === 'livelock') id = e;
       }
       if (id < 0) {

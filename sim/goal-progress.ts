@@ -17,8 +17,6 @@ import { reachedBit as reachedBitImport, type DistanceField, type DistanceFields
 // moving robot per tick.
 const reachedBit = reachedBitImport;
 
-/** Numbers GoalProgress keeps per robot (in its own block, or in a caller's block: see the constructor). */
-export const goalProgressSlots = 5;
 /** Slots of a robot's numbers (a const enum: the numbers are written into the code). */
 const enum G {
   Goal = 0,
@@ -29,39 +27,27 @@ const enum G {
   /** Distance relative to the cell where the goal was first seen. */
   Relative = 3,
   Best = 4,
+  /** Numbers kept per robot, side by side (one block per robot: what a moving robot's step reads is on one line). */
+  Count = 5,
 }
 
 export class GoalProgress {
   private readonly field: (DistanceField | null)[];
-  /** Per robot, `goalProgressSlots` numbers at `robot * stride + offset` (slots G, above). */
+  /** Per robot, `G.Count` numbers at `robot * G.Count` (G, above). */
   private readonly state: Int32Array;
-  private readonly stride: number;
-  private readonly offset: number;
 
-  /**
-   * `state`, `stride` and `offset`: keep the numbers inside a caller's per-robot blocks (the
-   * deadlock detector packs its own per-robot state with them, so that a robot's state is
-   * one line to fetch); by default in a block of their own.
-   */
   constructor(
     robots: number,
     private readonly fields: DistanceFields,
-    state?: Int32Array,
-    stride = goalProgressSlots,
-    offset = 0,
   ) {
     this.field = new Array<DistanceField | null>(robots).fill(null);
-    if (state === undefined) state = new Int32Array(robots * stride);
-    if (offset + goalProgressSlots > stride || state.length < robots * stride) throw new Error('GoalProgress: the shared block is too small');
-    this.state = state;
-    this.stride = stride;
-    this.offset = offset;
-    for (let r = 0; r < robots; r++) state[r * stride + offset + G.Goal] = -1;
+    this.state = new Int32Array(robots * G.Count);
+    for (let r = 0; r < robots; r++) this.state[r * G.Count + G.Goal] = -1;
   }
 
   /** Forgets the robot's goal: its next observation counts as progress. */
   reset(robot: number): void {
-    this.state[robot * this.stride + this.offset + G.Goal] = -1;
+    this.state[robot * G.Count + G.Goal] = -1;
   }
 
   /**
@@ -71,7 +57,7 @@ export class GoalProgress {
    */
   observe(robot: number, goal: number, cell: number, x = cell % this.fields.layout.width, y = Math.floor(cell / this.fields.layout.width)): boolean {
     const state = this.state;
-    const base = robot * this.stride + this.offset;
+    const base = robot * G.Count;
     if (state[base + G.Goal] !== goal) {
       const field = this.fields.to(goal, cell);
       const value = field.valueAtXY(x, y);
