@@ -9,7 +9,7 @@
  *
  *   npm run bench                 table on stdout
  *   npm run bench -- --json       one JSON array of rows
- *   npm run bench -- --quick      skip the slow rows (munkres-js at 1000, pibt at 1,000 and 10,000 robots, the replay viewer, memory)
+ *   npm run bench -- --quick      skip the slow rows (munkres-js at 1000, pibt at 1,000 and 10,000 robots, the replay viewer, memory, the 24 h sweep)
  *   npm run bench -- --only NAME  only rows whose name starts with NAME (engine, policy, pibt, replay, search, assignment, memory, sweep, size)
  *   npm run bench -- --robots N   engine and policy rows: only the rows with N robots
  *   npm run bench -- --policy P   policy rows: only policy P's rows
@@ -129,8 +129,9 @@ async function main(): Promise<void> {
 
   if (wanted('sweep')) {
     const { benchSweep } = await import('./sweep.ts');
-    for (const row of await benchSweep([1, 2])) {
-      log(`sweep ${row.workers} workers: ${row.runsPerMinute} runs/min`);
+    // --quick: only the 4 h runs (the 24 h plan takes about 40 s on two cores).
+    for (const row of await benchSweep([1, 2], quick ? [4] : [4, 24])) {
+      log(`${row.name} ${row.hoursPerRun} h runs, ${row.name === 'sweep' ? `${row.workers} worker${row.workers === 1 ? '' : 's'}` : `${row.processes} processes`}: ${row.runsPerMinute} runs/min`);
       rows.push(row as Row);
     }
   }
@@ -153,7 +154,12 @@ async function main(): Promise<void> {
 }
 
 const memoryChildIndex = args.indexOf('--memory-child');
-if (memoryChildIndex >= 0) {
+const sweepChildIndex = args.indexOf('--sweep-child');
+if (sweepChildIndex >= 0) {
+  // A child of the sweep-processes row (bench/sweep.ts): one shard of a sweep plan on one worker.
+  const { sweepChild } = await import('./sweep.ts');
+  await sweepChild(args[sweepChildIndex + 1], args[sweepChildIndex + 2], args[sweepChildIndex + 3]);
+} else if (memoryChildIndex >= 0) {
   // A child of the memory rows (bench/memory.ts): one pibt run in a fresh process.
   const { memoryChild } = await import('./memory.ts');
   await memoryChild(Number(args[memoryChildIndex + 1]));
