@@ -1,7 +1,7 @@
 /**
  * Sweep and size benchmarks: the same sweep plan on 1 and 2 worker threads (runs per
  * minute; the ratio shows how well the pool uses the cores) beside the same plan as 2
- * shards in 2 separate processes (what the machine gives independent jobs), at two run
+ * shards in 2 separate processes (independent jobs on the same machine), at two run
  * lengths; and the wall time of the demo's sizing question. Each sweep starts in a fresh
  * folder, so nothing is resumed.
  */
@@ -33,22 +33,43 @@ function writePlan(folder: string, hours: number): string {
   return planFile;
 }
 
-/** Engine wall seconds of every run in a runs.jsonl (timing.wallSeconds). */
-function engineSeconds(runsFile: string): number {
-  return readFileSync(runsFile, 'utf8')
-    .trimEnd()
-    .split('\n')
-    .reduce((sum, line) => sum + (JSON.parse(line).timing.wallSeconds as number), 0);
+/** Engine wall seconds of each run in runs.jsonl files (timing.wallSeconds). */
+function runSeconds(runsFiles: string[]): number[] {
+  return runsFiles.flatMap((file) =>
+    readFileSync(file, 'utf8')
+      .trimEnd()
+      .split('\n')
+      .map((line) => JSON.parse(line).timing.wallSeconds as number),
+  );
+}
+
+/** The busy share and a run's median engine time, from the runs' own timings. */
+function runFigures(runsFiles: string[], lanes: number, seconds: number): { workerBusyShare: number; medianRunSeconds: number } {
+  const times = runSeconds(runsFiles);
+  const sorted = [...times].sort((a, b) => a - b);
+  const middle = sorted.length >> 1;
+  const median = sorted.length % 2 === 1 ? sorted[middle] : (sorted[middle - 1] + sorted[middle]) / 2;
+  return {
+    // Share of the lanes' time spent simulating (engine wall time of every run over lanes x
+    // sweep wall time): near 1 when every thread or process is kept busy, whatever else
+    // slows the machine down.
+    workerBusyShare: Number((times.reduce((a, b) => a + b, 0) / (lanes * seconds)).toFixed(3)),
+    // One run's engine time, its median over the plan: the first runs of a fresh thread are
+    // slower (JIT warm-up), so the median shows the steady state; against the 1-worker row
+    // it shows how much slower a run is while the other core is busy too.
+    medianRunSeconds: Number(median.toFixed(4)),
+  };
 }
 
 /**
  * The sweep rows: for each run length, the same plan on each worker count (one pool of
  * worker threads in this process), then the same plan split into as many shards as the
  * largest worker count, each shard a separate process with one worker, all started at once
- * (`sweep-processes`). The separate processes share nothing but the machine, so their
- * speed-up over one worker is what this machine gives that many independent jobs: the
- * ceiling for the thread pool, measured in the same run (`shareOfProcesses` on the pool's
- * row). Each sweep starts in a fresh folder, so nothing is resumed.
+ * (`sweep-processes`, as shards on a cluster or in two terminals would run it). The
+ * separate processes share nothing but the machine: a reference for the pool measured in
+ * the same run (`shareOfProcesses` on the pool's row: its runs per minute over theirs; they
+ * also pay each process's start-up). Each sweep starts in a fresh folder, so nothing is
+ * resumed.
  */
 export async function benchSweep(workerCounts: number[], hoursList: number[] = [4, 24]): Promise<Record<string, number | string>[]> {
   const folder = mkdtempSync(path.join(os.tmpdir(), 'fleetwright-bench-sweep-'));
@@ -70,10 +91,7 @@ export async function benchSweep(workerCounts: number[], hoursList: number[] = [
           runs: plan.runs.length,
           wallSeconds: Number(seconds.toFixed(2)),
           runsPerMinute: Number(((plan.runs.length * 60) / seconds).toFixed(1)),
-          // Share of the workers' time spent simulating (engine wall time of every run over
-          // workers x sweep wall time): near 1 when the pool keeps every thread busy, whatever
-          // else slows the machine down.
-          workerBusyShare: Number((engineSeconds(path.join(out, 'runs.jsonl')) / (workers * seconds)).toFixed(3)),
+          ...runFigures([path.join(out, 'runs.jsonl')], workers, seconds),
           loadAverage: Number(os.loadavg()[0].toFixed(2)),
         });
       }
@@ -111,7 +129,6 @@ async function separateProcesses(planFile: string, runs: number, hours: number, 
     ),
   );
   const seconds = (performance.now() - started) / 1000;
-  const busy = outs.reduce((sum, out) => sum + engineSeconds(path.join(out, 'runs.jsonl')), 0);
   return {
     name: 'sweep-processes',
     hoursPerRun: hours,
@@ -120,7 +137,11 @@ async function separateProcesses(planFile: string, runs: number, hours: number, 
     runs,
     wallSeconds: Number(seconds.toFixed(2)),
     runsPerMinute: Number(((runs * 60) / seconds).toFixed(1)),
-    workerBusyShare: Number((busy / (count * seconds)).toFixed(3)),
+    ...runFigures(
+      outs.map((out) => path.join(out, 'runs.jsonl')),
+      count,
+      seconds,
+    ),
     loadAverage: Number(os.loadavg()[0].toFixed(2)),
   };
 }
