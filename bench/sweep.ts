@@ -16,6 +16,7 @@ import { wholePlan } from '../experiments/shard.ts';
 import { sizeFleet } from '../experiments/size.ts';
 import { defaultWorkers } from '../experiments/pool.ts';
 import { loadScenarioFile } from '../scenarios/load.ts';
+import { quantileSorted } from '../reports/stats/quantile-sorted.ts';
 
 const demo = path.resolve('scenarios/demo-sortation.yaml');
 
@@ -46,9 +47,10 @@ function runSeconds(runsFiles: string[]): number[] {
 /** The busy share and a run's median engine time, from the runs' own timings. */
 function runFigures(runsFiles: string[], lanes: number, seconds: number): { workerBusyShare: number; medianRunSeconds: number } {
   const times = runSeconds(runsFiles);
-  const sorted = [...times].sort((a, b) => a - b);
-  const middle = sorted.length >> 1;
-  const median = sorted.length % 2 === 1 ? sorted[middle] : (sorted[middle - 1] + sorted[middle]) / 2;
+  const median = quantileSorted(
+    [...times].sort((a, b) => a - b),
+    0.5,
+  );
   return {
     // Share of the lanes' time spent simulating (engine wall time of every run over lanes x
     // sweep wall time): near 1 when every thread or process is kept busy, whatever else
