@@ -28,6 +28,7 @@ import { setFlagsFromString } from 'node:v8';
 import { runInNewContext } from 'node:vm';
 import seedrandom from 'seedrandom';
 import { loadScenarioFile } from '../scenarios/load.ts';
+import { quantileSorted } from '../reports/stats/quantile-sorted.ts';
 import { generateSortationHall } from '../scenarios/generate.ts';
 import { prepareSetup } from '../experiments/replications.ts';
 import { runReplication } from '../sim/engine.ts';
@@ -72,9 +73,10 @@ function manhattanTable(layout: Layout, goal: number): Int32Array {
 }
 
 function median(values: number[]): number {
-  const sorted = [...values].sort((a, b) => a - b);
-  const mid = sorted.length >> 1;
-  return sorted.length % 2 ? sorted[mid] : (sorted[mid - 1] + sorted[mid]) / 2;
+  return quantileSorted(
+    [...values].sort((a, b) => a - b),
+    0.5,
+  );
 }
 
 /** Single-robot queries without reservations: our search against pathfinding's A*. */
