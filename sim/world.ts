@@ -123,6 +123,11 @@ export class World {
   readonly openTasks: number[] = [];
   /** Bumped whenever the open list or a robot's task changes; policies use it to skip work. */
   version = 0;
+  /**
+   * Open tasks per pickup cell (indexed by cell), kept with the open list wherever a task
+   * joins or leaves it, so a policy reads a pickup's open count without scanning a deep pool.
+   */
+  readonly openAtPickup: Int32Array;
   /** Called by assign() so the engine can react (saturated demand refills, station counts). */
   onAssign: ((task: number, robot: number) => void) | null = null;
   /** Called by unassign() after the task went back to the open list. */
@@ -150,6 +155,7 @@ export class World {
     this.robotPhase = new Uint8Array(robots);
     this.robotHandlingUntil = new Int32Array(robots);
     this.occupant = new Int32Array(layout.cellCount).fill(-1);
+    this.openAtPickup = new Int32Array(layout.cellCount);
     this.robotCharger = new Int32Array(robots).fill(-1);
     this.robotBroken = new Uint8Array(robots);
     this.robotStopPending = new Uint8Array(robots);
@@ -217,7 +223,10 @@ export class World {
       throw new RunError(`policy assigned task ${task}, which is not open`);
     }
     const index = openListIndex(this, task);
-    if (index >= 0) removeAt(this.openTasks, index);
+    if (index >= 0) {
+      removeAt(this.openTasks, index);
+      this.openAtPickup[this.taskPickup[task]]--;
+    }
     this.setState(task, TaskState.Assigned);
     this.taskRobot[task] = robot;
     this.taskAssignedTick[task] = this.currentTick;
@@ -239,6 +248,7 @@ export class World {
     this.robotTask[robot] = -1;
     this.robotPhase[robot] = Phase.Idle;
     insertByRelease(this, task);
+    this.openAtPickup[this.taskPickup[task]]++;
     this.version++;
     this.onUnassign?.(task, robot);
     return task;
@@ -271,6 +281,7 @@ export class World {
     this.taskDeliveredTick[id] = -1;
     if (state === TaskState.Open) {
       this.openTasks.push(id);
+      this.openAtPickup[pickup]++;
       this.version++;
     }
     return id;
@@ -292,6 +303,7 @@ export class World {
   releaseHeld(task: number): void {
     this.setState(task, TaskState.Open);
     insertByRelease(this, task);
+    this.openAtPickup[this.taskPickup[task]]++;
     this.version++;
   }
 

@@ -4,7 +4,8 @@
  * in release order. After any sequence of releases, assignments (of any open task, near
  * the end or the front of a deep pool), hand-backs, deliveries (slots reused) and held
  * releases, the list must equal a plain array kept the obvious way: push on release,
- * indexOf + splice on assignment, sort by release serial on return.
+ * indexOf + splice on assignment, sort by release serial on return; and the world's open
+ * tasks per pickup cell must equal a count of that array.
  */
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
@@ -14,7 +15,7 @@ import { Phase, TaskState, World } from '../sim/world.ts';
 const layout = parseLayout(['########', '#P.D..H#', '#P..D.H#', '#P...DH#', '########'].join('\n'));
 
 describe('World open list', () => {
-  it('matches a plain array under random releases, assignments, hand-backs and deliveries (fast-check)', () => {
+  it('matches a plain array, and its per-pickup counts a count of it, under random releases, assignments, hand-backs and deliveries (fast-check)', () => {
     const op = fc.oneof(
       // Several tasks at once, so the pool gets deep enough for both removal paths (tails over 32).
       fc.record({ kind: fc.constant('release' as const), count: fc.integer({ min: 1, max: 40 }), held: fc.boolean() }),
@@ -63,6 +64,10 @@ describe('World open list', () => {
             bySerial();
           }
           expect(world.openTasks).toEqual(expected);
+          // The per-pickup open counts, against a count of the plain array.
+          const counted = new Int32Array(layout.cellCount);
+          for (const task of expected) counted[world.taskPickup[task]]++;
+          expect(world.openAtPickup).toEqual(counted);
         }
       }),
       { numRuns: 300, seed: 20261202 },
