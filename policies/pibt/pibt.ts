@@ -123,6 +123,10 @@ export class Pibt implements Policy {
   private readonly robotCell: Int32Array;
   private readonly occupant: Int32Array;
   private readonly neighbors: Int32Array;
+  /** Per cell, bit d set when the neighbour in direction d is floor (layout.neighbors as one byte: a table that stays in cache on big halls). */
+  private readonly openDirs: Uint8Array;
+  /** Cell offsets of the four directions (north, east, south, west). */
+  private readonly dirOffset: Int32Array;
 
   /** The goal each robot pursued at the last step (task goal or parking claim), -1 for none. */
   private readonly goal: Int32Array;
@@ -196,6 +200,9 @@ export class Pibt implements Policy {
     this.robotCell = world.robotCell;
     this.occupant = world.occupant;
     this.neighbors = layout.neighbors;
+    this.openDirs = new Uint8Array(layout.cellCount);
+    for (let c = 0; c < layout.cellCount; c++) for (let d = 0; d < 4; d++) if (layout.neighbors[c * 4 + d] >= 0) this.openDirs[c] |= 1 << d;
+    this.dirOffset = Int32Array.of(-layout.width, 1, layout.width, -1);
     this.goal = new Int32Array(robots).fill(-1);
     this.goalField = new Array<DistanceField | null>(robots).fill(null);
     this.onDetour = new Uint8Array(robots);
@@ -609,7 +616,6 @@ export class Pibt implements Policy {
 
   /** Prepares robot r's frame: its parent and its candidate cells, best first. */
   private push(r: number, parentRobot: number, tick: number): void {
-    const neighbors = this.neighbors;
     this.parent[r] = parentRobot;
     this.cursor[r] = 0;
     const cell = this.robotCell[r];
@@ -646,8 +652,10 @@ export class Pibt implements Policy {
     const world = this.context.world;
     const heading = world.turnTicks > 0 ? world.robotHeading[r] : -1;
     let count = 0;
+    const open = this.openDirs[cell];
+    const offset = this.dirOffset;
     for (let d = -1; d < 4; d++) {
-      const v = d < 0 ? cell : neighbors[cell * 4 + d];
+      const v = d < 0 ? cell : (open >> d) & 1 ? cell + offset[d] : -1;
       if (v < 0) continue;
       // Distance first, then (forward-only) turns, then cells empty now, then a seeded hash of (tick, robot, cell).
       const step = v === cell ? 1 : farther < 0 ? 2 : (farther >> d) & 1 ? 2 : 0;
