@@ -10,7 +10,7 @@
  *   npm run bench                 table on stdout
  *   npm run bench -- --json       one JSON array of rows
  *   npm run bench -- --quick      skip the slow rows (munkres-js at 1000, pibt at 1,000 and 10,000 robots, the replay viewer, memory, the 24 h sweep)
- *   npm run bench -- --only NAME  only rows whose name starts with NAME (engine, policy, pibt, replay, search, assignment, memory, sweep, size)
+ *   npm run bench -- --only NAME  only rows whose name starts with NAME (engine, engine-steady, policy, pibt, replay, search, assignment, memory, sweep, size)
  *   npm run bench -- --robots N   engine and policy rows: only the rows with N robots
  *   npm run bench -- --policy P   policy rows: only policy P's rows
  *
@@ -73,6 +73,44 @@ function measure(name: string, scenario: Scenario): Row {
   return row;
 }
 
+/**
+ * The same replication run `runs` times in this process: the first runs pay for the JIT
+ * compiling the engine, policy and search, so a single row is part warm-up. A sizing or a
+ * sweep runs dozens of replications per worker, so the later runs are what it pays per
+ * run: the row gives each run's wall seconds and agent-steps per second over the median of
+ * all runs but the first. Every run must deliver the same (same scenario, same seed).
+ */
+function steady(scenario: Scenario, runs: number): Row {
+  const setup = prepareSetup(scenario);
+  const wall: number[] = [];
+  let delivered = -1;
+  let agentSteps = 0;
+  for (let i = 0; i < runs; i++) {
+    const record = runReplication(setup, 0);
+    if (delivered >= 0 && record.delivered !== delivered) throw new Error(`engine-steady: run ${i + 1} delivered ${record.delivered}, run 1 ${delivered}`);
+    delivered = record.delivered;
+    agentSteps = record.agentSteps;
+    wall.push(record.timing.wallSeconds);
+  }
+  const later = wall.slice(1).sort((a, b) => a - b);
+  const median = later.length % 2 === 1 ? later[(later.length - 1) / 2] : (later[later.length / 2 - 1] + later[later.length / 2]) / 2;
+  const row: Row = {
+    name: 'engine-steady',
+    policy: scenario.policy.name,
+    robots: scenario.fleet.robots,
+    simulatedHours: scenario.run.hours,
+    runs,
+    wallSecondsPerRun: wall.map((w) => w.toFixed(3)).join(' '),
+    wallSeconds: Number(median.toFixed(3)),
+    agentStepsPerSecond: Math.round(agentSteps / median),
+    realTimeFactor: Math.round((scenario.run.hours * 3600) / median),
+    delivered,
+    wallMsPerDelivered: delivered > 0 ? Number(((median * 1000) / delivered).toFixed(3)) : null,
+  };
+  log(`engine-steady ${scenario.policy.name} ${scenario.fleet.robots} robots: ${row.agentStepsPerSecond} agent-steps/s (runs 2-${runs}, median)`);
+  return row;
+}
+
 /** The demo hall under saturated demand: every robot always has work, the hardest case for planners. */
 function demo(policy: string, robots: number, hours: number): Scenario {
   const scenario = loadScenarioFile('scenarios/demo-sortation.yaml', { policy, robots, hours, replications: 1 });
@@ -86,6 +124,7 @@ async function main(): Promise<void> {
   if (wanted('engine')) {
     for (const robots of [10, 20, 40]) if (fleetWanted(robots)) rows.push(measure('engine', demo('token-passing', robots, 8)));
   }
+  if (wanted('engine-steady') && fleetWanted(40)) rows.push(steady(demo('token-passing', 40, 8), 4));
   if (wanted('policy')) {
     for (const factory of policies) {
       if (onlyPolicy !== null && factory.name !== onlyPolicy) continue;
