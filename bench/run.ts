@@ -21,6 +21,7 @@ import { loadScenarioFile } from '../scenarios/load.ts';
 import { prepareSetup } from '../experiments/replications.ts';
 import { runReplication } from '../sim/engine.ts';
 import { policies } from '../policies/registry.ts';
+import { quantileSorted } from '../reports/stats/quantile-sorted.ts';
 import type { Scenario } from '../sim/model.ts';
 
 const args = process.argv.slice(2);
@@ -92,8 +93,10 @@ function steady(scenario: Scenario, runs: number): Row {
     agentSteps = record.agentSteps;
     wall.push(record.timing.wallSeconds);
   }
-  const later = wall.slice(1).sort((a, b) => a - b);
-  const median = later.length % 2 === 1 ? later[(later.length - 1) / 2] : (later[later.length / 2 - 1] + later[later.length / 2]) / 2;
+  const median = quantileSorted(
+    wall.slice(1).sort((a, b) => a - b),
+    0.5,
+  );
   const row: Row = {
     name: 'engine-steady',
     policy: scenario.policy.name,
