@@ -51,6 +51,12 @@ export interface Layout {
   readonly neighbors: Int32Array;
   /** Number of passable neighbours per cell. */
   readonly degree: Uint8Array;
+  /**
+   * Per cell, bit d set when `neighbors[c * 4 + d]` is a cell (d = 0..3: N, E, S, W): the
+   * neighbour table as one byte per cell, for inner loops on big halls (120 KB on 480 x 250,
+   * where the table is 1.9 MB). The neighbour that way is c - width, c + 1, c + width, c - 1.
+   */
+  readonly openDirections: Uint8Array;
   readonly pickups: Int32Array;
   readonly drops: Int32Array;
   readonly storage: Int32Array;
@@ -122,6 +128,7 @@ export function buildLayout(width: number, height: number, kind: Uint8Array): La
   for (let c = 0; c < cellCount; c++) passable[c] = kind[c] === CellKind.Blocked ? 0 : 1;
   const neighbors = new Int32Array(cellCount * 4).fill(-1);
   const degree = new Uint8Array(cellCount);
+  const openDirections = new Uint8Array(cellCount);
   const lists: number[][] = [[], [], [], [], [], [], []];
   const floor: number[] = [];
   for (let y = 0; y < height; y++) {
@@ -136,6 +143,7 @@ export function buildLayout(width: number, height: number, kind: Uint8Array): La
         if (n >= 0 && passable[n]) {
           neighbors[c * 4 + d] = n;
           degree[c]++;
+          openDirections[c] |= 1 << d;
         }
       }
     }
@@ -148,6 +156,7 @@ export function buildLayout(width: number, height: number, kind: Uint8Array): La
     passable,
     neighbors,
     degree,
+    openDirections,
     pickups: Int32Array.from(lists[CellKind.Pickup]),
     drops: Int32Array.from(lists[CellKind.Drop]),
     storage: Int32Array.from(lists[CellKind.Storage]),

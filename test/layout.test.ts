@@ -17,6 +17,31 @@ describe('parseLayout', () => {
     expect(cellLabel(layout, 2 * 5 + 3)).toBe('3:2');
   });
 
+  it('gives each cell its open directions as one byte: bit d set exactly where the neighbour table has a cell, that cell at the direction offset', () => {
+    const layout = parseLayout(`
+######
+#P.#D#
+#.#..#
+#H...#
+######`);
+    const offsets = [-layout.width, 1, layout.width, -1];
+    let open = 0;
+    for (let c = 0; c < layout.cellCount; c++) {
+      for (let d = 0; d < 4; d++) {
+        const n = layout.neighbors[c * 4 + d];
+        expect((layout.openDirections[c] >> d) & 1).toBe(n >= 0 ? 1 : 0);
+        if (n >= 0) {
+          expect(n).toBe(c + offsets[d]);
+          open++;
+        }
+      }
+      expect(layout.openDirections[c] >> 4).toBe(0);
+    }
+    // Counted by hand: 10 floor cells with 10 floor-to-floor contacts (5 across, 5 up and down), each seen from both sides.
+    expect(layout.floorCells.length).toBe(10);
+    expect(open).toBe(20);
+  });
+
   it('rejects ragged rows and unknown characters, naming row and column', () => {
     expect(() => parseLayout('###\n#P\n###')).toThrow(/row 2 has 2 cells, expected 3/);
     expect(() => parseLayout('###\n#X#\n###')).toThrow(LayoutError);

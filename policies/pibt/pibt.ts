@@ -123,7 +123,7 @@ export class Pibt implements Policy {
   private readonly robotCell: Int32Array;
   private readonly occupant: Int32Array;
   private readonly neighbors: Int32Array;
-  /** Per cell, bit d set when the neighbour in direction d is floor (layout.neighbors as one byte: a table that stays in cache on big halls). */
+  /** Per cell, bit d set when the neighbour in direction d is floor (Layout.openDirections: a table that stays in cache on big halls). */
   private readonly openDirs: Uint8Array;
   /** Cell offsets of the four directions (north, east, south, west). */
   private readonly dirOffset: Int32Array;
@@ -200,8 +200,7 @@ export class Pibt implements Policy {
     this.robotCell = world.robotCell;
     this.occupant = world.occupant;
     this.neighbors = layout.neighbors;
-    this.openDirs = new Uint8Array(layout.cellCount);
-    for (let c = 0; c < layout.cellCount; c++) for (let d = 0; d < 4; d++) if (layout.neighbors[c * 4 + d] >= 0) this.openDirs[c] |= 1 << d;
+    this.openDirs = layout.openDirections;
     this.dirOffset = Int32Array.of(-layout.width, 1, layout.width, -1);
     this.goal = new Int32Array(robots).fill(-1);
     this.goalField = new Array<DistanceField | null>(robots).fill(null);
