@@ -290,6 +290,19 @@ export class DistanceFields {
       const from = (y0 + y) * layout.width + x0;
       unvisited.set(passable.subarray(from, from + w), (y + 1) * pw + 1);
     }
+    // The exactness check needs the distances of the window's ring cells only: they are
+    // marked 2 in `unvisited` (1: an interior floor cell) and get their distance when queued.
+    if (check) {
+      const bottom = h * pw;
+      for (let x = 1; x <= w; x++) {
+        unvisited[pw + x] <<= 1;
+        if (h > 1) unvisited[bottom + x] <<= 1;
+      }
+      for (let y = 2; y < h; y++) {
+        unvisited[y * pw + 1] <<= 1;
+        if (w > 1) unvisited[y * pw + w] <<= 1;
+      }
+    }
     const values = new Uint8Array(size);
     const distance = this.distance;
     const queue = this.queue;
@@ -297,6 +310,7 @@ export class DistanceFields {
     let tail = 0;
     if (unvisited[start] || layout.passable[goal]) {
       unvisited[start] = 0;
+      distance[start] = 0;
       queue[tail++] = start;
     }
     let head = 0;
@@ -305,29 +319,37 @@ export class DistanceFields {
     while (head < tail) {
       const end = tail;
       const value = (layer & 3) | reachedBit;
+      const below = layer + 1;
       for (; head < end; head++) {
         const p = queue[head];
         values[p] = value;
-        distance[p] = layer;
         let n = p - pw;
-        if (unvisited[n]) {
+        let u = unvisited[n];
+        if (u) {
           unvisited[n] = 0;
           queue[tail++] = n;
+          if (u === 2) distance[n] = below;
         }
         n = p + 1;
-        if (unvisited[n]) {
+        u = unvisited[n];
+        if (u) {
           unvisited[n] = 0;
           queue[tail++] = n;
+          if (u === 2) distance[n] = below;
         }
         n = p + pw;
-        if (unvisited[n]) {
+        u = unvisited[n];
+        if (u) {
           unvisited[n] = 0;
           queue[tail++] = n;
+          if (u === 2) distance[n] = below;
         }
         n = p - 1;
-        if (unvisited[n]) {
+        u = unvisited[n];
+        if (u) {
           unvisited[n] = 0;
           queue[tail++] = n;
+          if (u === 2) distance[n] = below;
         }
       }
       layer++;
