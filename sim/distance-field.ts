@@ -106,8 +106,13 @@ export class DistanceField {
    * when the window does not cover the cell and its neighbours (ask DistanceFields.to again).
    */
   rankAround(cell: number): number {
-    const x = this.cellX[cell] - this.x0;
-    const y = this.cellY[cell] - this.y0;
+    return this.rankAroundXY(this.cellX[cell], this.cellY[cell]);
+  }
+
+  /** rankAround for the cell at column x, row y of the layout (for callers that have them at hand: a cell-to-column table lookup per call is a cache miss on big halls). */
+  rankAroundXY(layoutX: number, layoutY: number): number {
+    const x = layoutX - this.x0;
+    const y = layoutY - this.y0;
     const width = this.width;
     if (x < 0 || y < 0 || x >= width || y >= this.height) return -2;
     if ((x === 0 && this.x0 !== 0) || (y === 0 && this.y0 !== 0)) return -2;
