@@ -101,7 +101,7 @@ const handlingPhase = isHandling;
  * load per access in the per-robot loop).
  */
 const enum Slot {
-  Stride = 8,
+  Stride = 10,
   LastCell = 0,
   Moves = 1,
   BoxMinX = 2,
@@ -110,6 +110,9 @@ const enum Slot {
   BoxMaxY = 5,
   GoalSeen = 6,
   LastProgress = 7,
+  /** Column and row of LastCell (valid while LastCell >= 0). */
+  LastX = 8,
+  LastY = 9,
 }
 
 /** What each robot did over the evaluated step (W: the same numbers, written into the code). */
@@ -146,7 +149,7 @@ export interface EvaluationResult {
 
 export class DeadlockDetector {
   readonly status: Uint8Array;
-  /** Column and row of every cell, side by side (no division per robot per tick, one line per lookup). */
+  /** Column and row of every cell, side by side, for robots that did not come by one step (a moving robot's are followed in its state block). */
   private readonly cellXY: Int32Array;
   /** Station (index into the station list) whose queue the robot stands in, or -1. */
   readonly queueStation: Int32Array;
@@ -155,7 +158,7 @@ export class DeadlockDetector {
   private readonly robots: number;
   /**
    * The per-robot state the detector reads at every evaluation, one block of `Slot.Stride`
-   * numbers per robot (Slot, above): the last cell seen, moves and bounding box of the cells
+   * numbers per robot (Slot, above): the last cell seen with its column and row, moves and bounding box of the cells
    * stood on since the last progress (BoxMinX -1: not started), the goal last seen and the
    * tick of the last progress (GoalProgress keeps its own numbers in a block per robot of its
    * own: only moving robots read them). The detector runs
@@ -325,6 +328,7 @@ export class DeadlockDetector {
     const state = this.robotState;
     const episodeOf = this.episodeOf;
     const cellXY = this.cellXY;
+    const width = this.layout.width;
     const waitCount = this.waitCount;
     const goalProgress = this.goalProgress;
     const deadlockTicks = this.deadlockTicks;
@@ -362,12 +366,30 @@ export class DeadlockDetector {
 
       const before = state[base + Slot.LastCell];
       const moved = before >= 0 && before !== cell;
-      state[base + Slot.LastCell] = cell;
+      // The cell's column and row: a step changes one of them by one (a difference of one
+      // row's width is the same column a row down), anything else is looked up.
+      let x = state[base + Slot.LastX];
+      let y = state[base + Slot.LastY];
+      if (before !== cell) {
+        const delta = cell - before;
+        if (before < 0) {
+          x = cellXY[cell * 2];
+          y = cellXY[cell * 2 + 1];
+        } else if (delta === width) y++;
+        else if (delta === -width) y--;
+        else if (delta === 1 && x + 1 < width) x++;
+        else if (delta === -1 && x > 0) x--;
+        else {
+          x = cellXY[cell * 2];
+          y = cellXY[cell * 2 + 1];
+        }
+        state[base + Slot.LastCell] = cell;
+        state[base + Slot.LastX] = x;
+        state[base + Slot.LastY] = y;
+      }
       // The box of cells since the last progress changes only when the robot moved (or starts afresh).
       if (moved || state[base + Slot.BoxMinX] < 0) {
         if (moved) state[base + Slot.Moves]++;
-        const x = cellXY[cell * 2];
-        const y = cellXY[cell * 2 + 1];
         if (state[base + Slot.BoxMinX] < 0) {
           state[base + Slot.BoxMinX] = state[base + Slot.BoxMaxX] = x;
           state[base + Slot.BoxMinY] = state[base + Slot.BoxMaxY] = y;
@@ -391,12 +413,12 @@ export class DeadlockDetector {
       if (goal !== state[base + Slot.GoalSeen]) {
         state[base + Slot.GoalSeen] = goal;
         this.progress(r, tick);
-        if (goal >= 0) goalProgress.observe(r, goal, cell, cellXY[cell * 2], cellXY[cell * 2 + 1]); // starts following the new goal
+        if (goal >= 0) goalProgress.observe(r, goal, cell, x, y); // starts following the new goal
       } else if (goal < 0 || broken[r] === 1) {
         // No goal (idle, handling, charging) or broken down: nothing to progress towards; keep the clock fresh.
         state[base + Slot.LastProgress] = tick;
         state[base + Slot.Moves] = 0;
-      } else if (moved && goalProgress.observe(r, goal, cell, cellXY[cell * 2], cellXY[cell * 2 + 1])) {
+      } else if (moved && goalProgress.observe(r, goal, cell, x, y)) {
         // this.progress(r, tick), written out: most moving robots progress at every step.
         state[base + Slot.LastProgress] = tick;
         state[base + Slot.Moves] = 0;

@@ -188,6 +188,63 @@ describe('wait-for graph on hand-built positions', () => {
     }
   });
 
+  it('pacing north and south is a livelock as pacing east and west is; walking a winding corridor to the goal, never an episode', () => {
+    // The detector follows each robot's column and row step by step (a step north or south
+    // changes the cell by one row's width): the box of cells stood on must stay 1 x 2 while
+    // the robot paces between two cells of a column, and a robot that gets closer at every
+    // step, whichever way it turns, makes progress at every step.
+    const column = ['###', '#P#', ...Array.from({ length: 10 }, () => '#.#'), '###'];
+    const { world, detector, at } = handWorld(column, [[1, 6]], new Map([[0, [1, 1]]]));
+    for (let t = 0; t <= deadlockTicks + 5; t++) {
+      const here = world.robotCell[0];
+      const there = here === at([1, 6]) ? at([1, 7]) : at([1, 6]);
+      detector.evaluate(t, world, Int32Array.of(there), null, false);
+      world.occupant[here] = -1;
+      world.robotCell[0] = there;
+      world.occupant[there] = 0;
+    }
+    expect(kinds(detector, 200)).toEqual(['livelock']);
+
+    // A corridor that winds east, south, west, south, east... 30 cells a run: the only way
+    // to the pickup at its far end, over 200 steps (longer than deadlockSeconds).
+    const width = 32;
+    const bands = 7;
+    const rows: string[][] = [Array.from({ length: width }, () => '#')];
+    const path: [number, number][] = [];
+    for (let band = 0; band < bands; band++) {
+      const y = 1 + 2 * band;
+      const east = band % 2 === 0;
+      rows.push(Array.from({ length: width }, (_, x) => (x === 0 || x === width - 1 ? '#' : '.')));
+      for (let i = 0; i < width - 2; i++) path.push([east ? 1 + i : width - 2 - i, y]);
+      if (band + 1 < bands) {
+        const gap = east ? width - 2 : 1;
+        rows.push(Array.from({ length: width }, (_, x) => (x === gap ? '.' : '#')));
+        path.push([gap, y + 1]);
+      }
+    }
+    rows.push(Array.from({ length: width }, () => '#'));
+    const [goalX, goalY] = path[path.length - 1];
+    rows[goalY][goalX] = 'P';
+    const corridor = handWorld(
+      rows.map((r) => r.join('')),
+      [path[0]],
+      new Map([[0, [goalX, goalY]]]),
+    );
+    expect(path.length).toBeGreaterThan(deadlockTicks + 60);
+    for (let t = 0; t + 1 < path.length; t++) {
+      const here = corridor.at(path[t]);
+      const there = corridor.at(path[t + 1]);
+      expect(corridor.world.robotCell[0]).toBe(here);
+      corridor.detector.evaluate(t, corridor.world, Int32Array.of(there), null, false);
+      // Progress at this tick: the next check is a whole deadlockSeconds away.
+      expect(corridor.detector.nextCheckTick(corridor.world)).toBe(t + deadlockTicks);
+      corridor.world.occupant[here] = -1;
+      corridor.world.robotCell[0] = there;
+      corridor.world.occupant[there] = 0;
+    }
+    expect(kinds(corridor.detector, path.length)).toEqual([]);
+  });
+
   it('a robot on a long detour (moving on without getting closer, over new cells) is not a livelock', () => {
     // 150 ticks driving east, away from its pickup at the west end: no progress and moving
     // every tick, but it never comes back to a cell, so it is not moving in place.
