@@ -14,7 +14,10 @@ export const unreachable = 0x3fffffff;
 export function distanceTable(layout: Layout, target: number, queue: Int32Array = new Int32Array(layout.cellCount)): Int32Array {
   const distance = new Int32Array(layout.cellCount).fill(unreachable);
   if (!layout.passable[target]) return distance;
-  const neighbors = layout.neighbors;
+  // Open sides as one byte per cell (Layout.openDirections) rather than four Int32 neighbour
+  // entries: the search reads a quarter of a line per cell instead of one.
+  const open = layout.openDirections;
+  const width = layout.width;
   let head = 0;
   let tail = 0;
   distance[target] = 0;
@@ -22,13 +25,22 @@ export function distanceTable(layout: Layout, target: number, queue: Int32Array 
   while (head < tail) {
     const c = queue[head++];
     const next = distance[c] + 1;
-    const base = c * 4;
-    for (let d = 0; d < 4; d++) {
-      const n = neighbors[base + d];
-      if (n >= 0 && distance[n] === unreachable) {
-        distance[n] = next;
-        queue[tail++] = n;
-      }
+    const sides = open[c];
+    if (sides & 1 && distance[c - width] === unreachable) {
+      distance[c - width] = next;
+      queue[tail++] = c - width;
+    }
+    if (sides & 2 && distance[c + 1] === unreachable) {
+      distance[c + 1] = next;
+      queue[tail++] = c + 1;
+    }
+    if (sides & 4 && distance[c + width] === unreachable) {
+      distance[c + width] = next;
+      queue[tail++] = c + width;
+    }
+    if (sides & 8 && distance[c - 1] === unreachable) {
+      distance[c - 1] = next;
+      queue[tail++] = c - 1;
     }
   }
   return distance;
