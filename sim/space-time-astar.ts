@@ -832,7 +832,8 @@ export class SpaceTimeAStar {
     const table = this.table;
     const label = this.label;
     const passable = this.layout.passable;
-    const neighbors = this.layout.neighbors;
+    const open = this.layout.openDirections;
+    const width = this.layout.width;
     const queue = this.labelQueue;
     this.reachabilityPasses++;
     const unlabelled = -2;
@@ -856,13 +857,23 @@ export class SpaceTimeAStar {
       label[c] = parts;
       while (head < tail) {
         const cell = queue[head++];
-        const base = cell * 4;
-        for (let d = 0; d < 4; d++) {
-          const n = neighbors[base + d];
-          if (n >= 0 && label[n] === unlabelled) {
-            label[n] = parts;
-            queue[tail++] = n;
-          }
+        // Open sides as one byte (Layout.openDirections), in the neighbour table's order.
+        const sides = open[cell];
+        if (sides & 1 && label[cell - width] === unlabelled) {
+          label[cell - width] = parts;
+          queue[tail++] = cell - width;
+        }
+        if (sides & 2 && label[cell + 1] === unlabelled) {
+          label[cell + 1] = parts;
+          queue[tail++] = cell + 1;
+        }
+        if (sides & 4 && label[cell + width] === unlabelled) {
+          label[cell + width] = parts;
+          queue[tail++] = cell + width;
+        }
+        if (sides & 8 && label[cell - 1] === unlabelled) {
+          label[cell - 1] = parts;
+          queue[tail++] = cell - 1;
         }
       }
       parts++;
