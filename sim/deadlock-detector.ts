@@ -149,7 +149,10 @@ export interface EvaluationResult {
 
 export class DeadlockDetector {
   readonly status: Uint8Array;
-  /** Column and row of every cell, side by side, for robots that did not come by one step (a moving robot's are followed in its state block). */
+  /**
+   * Column and row of every cell, side by side, for robots that did not come by one step (a
+   * moving robot's are followed in its state block).
+   */
   private readonly cellXY: Int32Array;
   /** Station (index into the station list) whose queue the robot stands in, or -1. */
   readonly queueStation: Int32Array;
@@ -158,12 +161,12 @@ export class DeadlockDetector {
   private readonly robots: number;
   /**
    * The per-robot state the detector reads at every evaluation, one block of `Slot.Stride`
-   * numbers per robot (Slot, above): the last cell seen with its column and row, moves and bounding box of the cells
-   * stood on since the last progress (BoxMinX -1: not started), the goal last seen and the
-   * tick of the last progress (GoalProgress keeps its own numbers in a block per robot of its
-   * own: only moving robots read them). The detector runs
-   * right after the policy's step has filled the caches with its own data: one block per
-   * robot is one line to fetch, read in robot order, where an array per number is a line per
+   * numbers per robot (Slot, above): the last cell seen with its column and row, moves and
+   * bounding box of the cells stood on since the last progress (BoxMinX -1: not started), the
+   * goal last seen and the tick of the last progress (GoalProgress keeps its own numbers in a
+   * block per robot of its own: only moving robots read them). The detector runs right after
+   * the policy's step has filled the caches with its own data: a robot's block (40 bytes) is
+   * one or two lines to fetch, read in robot order, where an array per number is a line per
    * number.
    */
   private readonly robotState: Int32Array;
