@@ -10,8 +10,9 @@
  * simulated tick, whether or not it moved), the real-time factor (simulated seconds per
  * wall second), deliveries, the policy's share of wall time (the engine's own cost is the
  * rest, measured in the same run) and the distance work: full tables built
- * (sim/distance-table.ts) and windowed fields built with the cells they searched
- * (sim/distance-field.ts). Wall time includes all of it, done lazily during the run. Beside
+ * (sim/distance-table.ts), and windowed fields built (sim/distance-field.ts) with the cells
+ * they swept (the window cells of every build, 32 at a time, plus the cells expanded by the
+ * searches for cells that are not tight) and those searches. Wall time includes all of it, done lazily during the run. Beside
  * it, the process's CPU seconds over the run and the 1-minute load average at its end: on a
  * shared machine wall time grows with other processes' load, CPU time much less, so the two
  * together tell a slower program from a busier machine. `poolDepth` is the capacity pool's
@@ -52,6 +53,9 @@ export interface PibtBenchRow {
   tableBuilds: number;
   fieldBuilds: number;
   fieldCellsSearched: number;
+  /** Searches for field cells that are not tight, and fields that fell back to a whole-floor search. */
+  fieldSearches: number;
+  fieldWholeFloorSearches: number;
   /** Resident set size at the end of the run, MB (the process's, so it includes earlier rows). */
   rssMegabytes: number;
 }
@@ -84,6 +88,8 @@ function benchHall(name: PibtBenchRow['name'], width: number, height: number, ro
     tableBuilds: distances.builds,
     fieldBuilds: distances.fields.builds,
     fieldCellsSearched: distances.fields.cellsSearched,
+    fieldSearches: distances.fields.searches,
+    fieldWholeFloorSearches: distances.fields.wholeFloorSearches,
     rssMegabytes: Math.round(process.memoryUsage().rss / 1e6),
   };
 }
@@ -111,7 +117,7 @@ if (import.meta.url === `file://${process.argv[1]}`) {
       `${row.name}, ${row.robots} robots, ${row.simulatedMinutes} min on a ${row.hall} hall: ${row.agentStepsPerSecond} agent-steps/s, ` +
         `${row.realTimeFactor}x real time (${row.wallSeconds} s wall, policy ${(row.planningShare * 100).toFixed(0)}% of it; ${row.cpuSeconds} s CPU, load ${row.loadAverage}), ` +
         `${row.delivered} delivered, ${row.collisions} collisions, ${row.deadlockEpisodes} deadlock episodes, pool ${row.poolDepth} tasks, ` +
-        `${row.tableBuilds} tables, ${row.fieldBuilds} fields (${(row.fieldCellsSearched / 1e6).toFixed(1)} M cells), ${row.rssMegabytes} MB RSS\n`,
+        `${row.tableBuilds} tables, ${row.fieldBuilds} fields (${(row.fieldCellsSearched / 1e6).toFixed(1)} M cells, ${row.fieldSearches} searches), ${row.rssMegabytes} MB RSS\n`,
     );
   }
 }

@@ -58,13 +58,13 @@ function expectAgrees(layout: Layout, field: DistanceField, table: Int32Array): 
   return checked;
 }
 
-describe('DistanceFields (windowed breadth-first fields, distance mod 4)', () => {
+describe('DistanceFields (windowed exact fields: tight cells from a bitmap, the rest by search)', () => {
   it('agrees with full breadth-first tables on every covered cell of 150 random floors, windows of margin 1', () => {
-    // Margin 1 makes windows tight, so the exactness check must catch every window that a
-    // path around its edge would beat, and grow it.
+    // Margin 1 makes windows tight, so many shortest paths leave them: the searches for cells
+    // that are not tight run over the whole floor and must still find them.
     const random = seedrandom('distance-fields');
     let checked = 0;
-    let grown = 0;
+    let searches = 0;
     let windowed = 0;
     for (let g = 0; g < 150; g++) {
       const width = 4 + Math.floor(random() * 30);
@@ -85,14 +85,73 @@ describe('DistanceFields (windowed breadth-first fields, distance mod 4)', () =>
           checked += result.checked;
         }
       }
-      grown += fields.windowsGrown;
+      searches += fields.searches;
     }
     expect(checked).toBeGreaterThan(20000);
-    // The suite exercises both outcomes of the check.
-    expect(grown).toBeGreaterThan(50);
+    // The suite exercises both kinds of cell: tight ones, and ones that needed a search.
+    expect(searches).toBeGreaterThan(1000);
     expect(windowed).toBeGreaterThan(500);
   });
 
+  it('marks a cell tight exactly when its distance is its Manhattan distance, on floors up to 140 columns wide (windows across 32-bit words)', () => {
+    // The bitmap is filled 32 columns at a time from windows that start at any column, so
+    // floors wider than a word, goals on every bit position and every margin are exercised.
+    // Reference: the full breadth-first table (checked against the pathfinding library in
+    // distance-table.test.ts) and the Manhattan distance.
+    const random = seedrandom('distance-fields-tight');
+    let tight = 0;
+    let loose = 0;
+    for (let g = 0; g < 60; g++) {
+      const width = 33 + Math.floor(random() * 108);
+      const height = 3 + Math.floor(random() * 12);
+      const { layout } = randomLayout(random, width, height, 0.05 + random() * 0.3);
+      if (layout.floorCells.length < 2) continue;
+      const fields = new DistanceFields(layout, undefined, Math.floor(random() * 9));
+      for (let k = 0; k < 4; k++) {
+        const goal = layout.floorCells[Math.floor(random() * layout.floorCells.length)];
+        const near = layout.floorCells[Math.floor(random() * layout.floorCells.length)];
+        const table = distanceTable(layout, goal);
+        const field = fields.to(goal, near);
+        const gx = goal % width;
+        const gy = Math.floor(goal / width);
+        for (const c of layout.floorCells) {
+          if (!field.covers(c)) continue;
+          const x = c % width;
+          const y = Math.floor(c / width);
+          const manhattan = Math.abs(x - gx) + Math.abs(y - gy);
+          if (field.tightXY(x, y) !== (table[c] === manhattan)) expect.fail(`floor ${g}, goal ${goal}, cell ${c}: tight ${field.tightXY(x, y)}, table ${table[c]}, Manhattan ${manhattan}`);
+          if (table[c] === manhattan) tight++;
+          else loose++;
+        }
+        const result = disagreement(layout, field, table);
+        if (result.first !== null) expect.fail(`floor ${g}, goal ${goal}, near ${near}: ${result.first}`);
+      }
+    }
+    expect(tight).toBeGreaterThan(10000);
+    expect(loose).toBeGreaterThan(10000);
+  });
+
+  it('on a maze where few cells are tight, a field whose searches run over budget takes one whole-floor search and stays exact', () => {
+    // A serpentine: 40 corridors of 101 cells joined at alternate ends; from the goal at one
+    // end, almost no cell is tight and each search walks the corridors.
+    const rows: string[] = [];
+    for (let y = 0; y < 79; y++) {
+      if (y % 2 === 0) rows.push('.'.repeat(101));
+      else if (y % 4 === 1) rows.push('#'.repeat(100) + '.');
+      else rows.push('.' + '#'.repeat(100));
+    }
+    const layout = parseLayout(rows.join('\n'));
+    const goal = 0;
+    const table = distanceTable(layout, goal);
+    const fields = new DistanceFields(layout, undefined, 2);
+    const field = fields.to(goal, 78 * 101 + 100);
+    expect(field.width * field.height).toBe(layout.cellCount);
+    const before = field.bytes;
+    expectAgrees(layout, field, table);
+    expect(fields.searches).toBeGreaterThan(0);
+    expect(fields.wholeFloorSearches).toBe(1);
+    expect(field.bytes).toBeGreaterThan(before);
+  });
   it('mod 4 matches the path lengths of the pathfinding library', () => {
     const random = seedrandom('distance-fields-pathfinding');
     const finder = new PF.BreadthFirstFinder({ allowDiagonal: false });
@@ -118,10 +177,10 @@ describe('DistanceFields (windowed breadth-first fields, distance mod 4)', () =>
     expect(compared).toBeGreaterThan(300);
   });
 
-  it('grows a window that a wall cuts in two, and then gives the distance around the wall', () => {
+  it('gives the distance around a wall that cuts the window in two, searching outside the window', () => {
     // Goal at 2:4, robot at 12:4; the wall in column 7 is open only in rows 0-1, outside the
-    // first window (rows 3-5 with margin 1). By hand: up 3 rows to row 1, 10 columns west,
-    // down 3 rows = 16 cells (Manhattan distance 10).
+    // window (rows 3-5 with margin 1). By hand: up 3 rows to row 1, 10 columns west, down 3
+    // rows = 16 cells (Manhattan distance 10).
     const rows = ['...............', '...............'];
     for (let y = 2; y < 9; y++) rows.push('.......#.......');
     const layout = parseLayout(rows.join('\n'));
@@ -129,23 +188,29 @@ describe('DistanceFields (windowed breadth-first fields, distance mod 4)', () =>
     const robot = 4 * 15 + 12;
     const fields = new DistanceFields(layout, undefined, 1);
     const field = fields.to(goal, robot);
-    expect(fields.windowsGrown).toBeGreaterThan(0);
+    expect([field.y0, field.height]).toEqual([3, 3]);
+    expect(field.tightXY(12, 4)).toBe(false);
     expect(field.reaches(robot)).toBe(true);
+    expect(field.distance(robot)).toBe(16);
     expect(field.mod4(robot)).toBe(16 % 4);
+    expect(fields.searches).toBeGreaterThan(0);
     // Moving north from the robot is one step closer (the way round the wall goes north).
     expect(field.step(robot, robot - 15)).toBe(-1);
     expect(field.step(robot, robot - 1)).toBe(-1);
     expect(field.step(robot, robot + 15)).toBe(1);
   });
 
-  it('keeps a window when it is exact: an open floor needs no growth', () => {
+  it('needs no search on an open floor: every cell is tight', () => {
     const layout = parseLayout(Array.from({ length: 30 }, () => '.'.repeat(60)).join('\n'));
     const fields = new DistanceFields(layout, undefined, 2);
     const field = fields.to(10 * 60 + 5, 20 * 60 + 40);
-    expect(fields.windowsGrown).toBe(0);
     // Columns 3..42, rows 8..22: 40 x 15 cells, a third of the floor.
     expect([field.x0, field.y0, field.width, field.height]).toEqual([3, 8, 40, 15]);
     expect(fields.cellsSearched).toBe(40 * 15);
+    expectAgrees(layout, field, distanceTable(layout, 10 * 60 + 5));
+    expect(fields.searches).toBe(0);
+    // 15 rows of two 32-bit words.
+    expect(field.bytes).toBe(15 * 2 * 4);
   });
 
   it('asked about a cell outside its window, a field grows and still covers what it covered', () => {
@@ -171,7 +236,7 @@ describe('DistanceFields (windowed breadth-first fields, distance mod 4)', () =>
     const finder = new PF.BreadthFirstFinder({ allowDiagonal: false });
     let compared = 0;
     let cutOff = 0;
-    let grown = 0;
+    let searches = 0;
     for (let g = 0; g < 60; g++) {
       const width = 5 + Math.floor(random() * 25);
       const height = 5 + Math.floor(random() * 15);
@@ -205,12 +270,12 @@ describe('DistanceFields (windowed breadth-first fields, distance mod 4)', () =>
           }
         }
       }
-      grown += fields.windowsGrown;
+      searches += fields.searches;
     }
     expect(compared).toBeGreaterThan(600);
-    // Both outcomes occur: cells the closed cells cut off, and windows the check had to grow.
+    // Both outcomes occur: cells the closed cells cut off, and cells whose distance needed a search.
     expect(cutOff).toBeGreaterThan(20);
-    expect(grown).toBeGreaterThan(10);
+    expect(searches).toBeGreaterThan(10);
   });
 
   it('a goal on a blocked cell reaches nothing', () => {
@@ -222,8 +287,8 @@ describe('DistanceFields (windowed breadth-first fields, distance mod 4)', () =>
 
 describe('DistanceFields cache', () => {
   it('evicts the least recently built fields beyond its byte budget, rebuilds them when asked again, and keeps the rest', () => {
-    // An open 8 x 5 floor: every field covers it whole (the margin exceeds the floor), 10 x 7
-    // padded bytes; the budget is the floor of 16 whole-floor fields.
+    // An open 8 x 5 floor: every field covers it whole (the margin exceeds the floor), one
+    // 32-bit word per row; the budget is the floor of 16 whole-floor fields.
     const layout = parseLayout(Array.from({ length: 5 }, () => '........').join('\n'));
     const fields = new DistanceFields(layout, 1);
     const first = new Map<number, DistanceField>();
