@@ -22,7 +22,7 @@ const enum G {
   Goal = 0,
   /** The cell last observed. */
   Cell = 1,
-  /** The field's byte at that cell (distance mod 4 | reached bit). */
+  /** The field's value at that cell (distance mod 4 | reached bit). */
   Value = 2,
   /** Distance relative to the cell where the goal was first seen. */
   Relative = 3,

@@ -31,10 +31,10 @@
  * cell and no robot enters the cell of a robot entering its own, so every tick is free of
  * vertex and swap collisions by construction (the engine's validator checks anyway).
  *
- * Distances to goals come from compact per-goal fields (sim/distance-field.ts: distance mod
- * 4 in a window, exact), fetched once per goal change and kept per robot: with thousands of
- * robots heading for thousands of different drops, one full table per goal neither fits in
- * memory nor in a bounded cache.
+ * Distances to goals come from compact per-goal fields (sim/distance-field.ts: exact
+ * distances over a window, mostly one bit per cell), fetched once per goal change and kept
+ * per robot: with thousands of robots heading for thousands of different drops, one full
+ * table per goal neither fits in memory nor in a bounded cache.
  *
  * Inheritance chains are walked with an explicit stack, not recursion: a chain can hold
  * every robot (one frame each), so recursion depth would grow with the fleet. Each robot
