@@ -156,7 +156,7 @@ export class DistanceField {
     return distance;
   }
 
-  /** The distance of a covered cell to the goal; -1 when it is blocked or cut off. */
+  /** The distance of a covered cell to the goal (the window must cover it); -1 when it is blocked or cut off. */
   distance(cell: number): number {
     return this.distanceXY(this.cellX[cell], this.cellY[cell]);
   }
@@ -447,6 +447,8 @@ export class DistanceFields {
     const words = (w + 31) >> 5;
     if (shift === 0) for (let k = 0; k < words; k++) row[k] = bits[base + k];
     else for (let k = 0; k < words; k++) row[k] = (bits[base + k] >>> shift) | (bits[base + k + 1] << (32 - shift));
+    // Columns past the window are never read (fills run away from the goal's column, and the
+    // last word lies east of it); clearing them keeps the bitmap to the window.
     const tail = w & 31;
     if (tail !== 0) row[words - 1] &= ~(-1 << tail);
   }
@@ -514,12 +516,7 @@ export class DistanceFields {
     const goal = field.goal;
     const gx = cellX[goal];
     const gy = cellY[goal];
-    if (this.stampId > 0x3ffffff0) {
-      stamp.fill(0);
-      this.stampId = 0;
-    }
-    this.stampId += 2;
-    const seen = this.stampId;
+    const seen = this.nextStamp();
     const expanded = seen + 1;
     let size = 0;
     let count = 0;
@@ -569,6 +566,16 @@ export class DistanceFields {
     this.lastExpanded = count;
     this.cellsSearched += count;
     return result;
+  }
+
+  /** A fresh pair of stamps (id: seen or reached, id + 1: expanded) for one search. */
+  private nextStamp(): number {
+    if (this.stampId > 0x3ffffff0) {
+      this.stamp.fill(0);
+      this.stampId = 0;
+    }
+    this.stampId += 2;
+    return this.stampId;
   }
 
   private heapPush(size: number, key: number, cell: number): number {
@@ -627,8 +634,7 @@ export class DistanceFields {
     // `tentative` holds the distances, `stamp` marks the cells reached.
     const distance = this.tentative;
     const stamp = this.stamp;
-    this.stampId += 2;
-    const reached = this.stampId;
+    const reached = this.nextStamp();
     const queue = new Int32Array(this.layout.cellCount);
     let tail = 0;
     if (this.open(goal, goal)) {
