@@ -36,10 +36,12 @@
  * with the least f); the path through t has length g(t) + d(t) = g(t) + M(t) = f(t) >= d(q).
  * So d(q) = f(t). The goal itself is tight, so the search ends; an exhausted search means q
  * is cut off from the goal. The answers are kept per cell. The search runs over the whole
- * floor, not the window, so window edges never make a distance wrong. Should a field's
- * searches expand more than a budget of cells (a maze-like floor where few cells are tight),
- * it takes one breadth-first search of the whole floor instead and keeps the window's
- * distances.
+ * floor, not the window, so window edges never make a distance wrong. On a maze-like floor
+ * few cells are tight and searching cell by cell walks the same corridors again and again:
+ * a field with fewer than half of its window's floor cells tight, or whose searches expand
+ * more than a budget of cells, takes one breadth-first search of the whole floor instead and
+ * keeps every cell's distance (4 bytes per floor cell), and the goal's larger field, when a
+ * robot strays out of the window, covers the whole floor and takes the same distances.
  *
  * Why a window. A robot heading for a goal stands near the rectangle spanned by its cell and
  * the goal, so a field covers that rectangle plus a margin (`margin` cells), and is rebuilt
@@ -60,6 +62,13 @@ export const reachedBit = 4;
 /** A* keys are f * tieScale + (tieScale - 1 - g): least f first, and the deeper entry among equal f. */
 const tieScale = 2 ** 21;
 
+/** Set bits of a 32-bit word (the SWAR population count). */
+function bitCount(v: number): number {
+  v -= (v >>> 1) & 0x55555555;
+  v = (v & 0x33333333) + ((v >>> 2) & 0x33333333);
+  return Math.imul((v + (v >>> 4)) & 0x0f0f0f0f, 0x01010101) >>> 24;
+}
+
 export class DistanceField {
   private readonly cellX: Int32Array;
   private readonly cellY: Int32Array;
@@ -72,7 +81,7 @@ export class DistanceField {
   private readonly goalWindowY: number;
   /** Distances found by search for cells that are not tight, by cell (-1: cut off from the goal). */
   private readonly searched = new Map<number, number>();
-  /** The window's distances (row-major, -1: none) once the searches exceeded their budget. */
+  /** Every floor cell's distance (-1: blocked or cut off) once the searches exceeded their budget. */
   private whole: Int32Array | null = null;
   /** Cells the searches for this field expanded. */
   private expanded = 0;
@@ -137,8 +146,8 @@ export class DistanceField {
   /** The distance of the covered cell at column x, row y to the goal; -1 when it is blocked or cut off. */
   distanceXY(layoutX: number, layoutY: number): number {
     if (this.tightXY(layoutX, layoutY)) return Math.abs(layoutX - this.goalX) + Math.abs(layoutY - this.goalY);
-    if (this.whole !== null) return this.whole[(layoutY - this.y0) * this.width + (layoutX - this.x0)];
     const cell = layoutY * this.floorWidth + layoutX;
+    if (this.whole !== null) return this.whole[cell];
     const known = this.searched.get(cell);
     if (known !== undefined) return known;
     const owner = this.owner;
@@ -146,14 +155,26 @@ export class DistanceField {
     if (!owner.open(cell, this.goal)) return -1;
     const distance = owner.searchToTight(this, cell);
     this.expanded += owner.lastExpanded;
-    if (this.expanded > owner.searchBudget) {
-      this.whole = owner.windowDistances(this);
-      this.searched.clear();
-      owner.grew(this, this.whole.byteLength);
-    } else {
-      this.searched.set(cell, distance);
-    }
+    if (this.expanded > owner.searchBudget) this.searchWholeFloor();
+    else this.searched.set(cell, distance);
     return distance;
+  }
+
+  /** True once the field has taken the whole-floor search (its searches went over budget). */
+  get searchedWholeFloor(): boolean {
+    return this.whole !== null;
+  }
+
+  /**
+   * Takes every cell's distance from one breadth-first search of the whole floor (no more
+   * searches per cell), or from `from`, an earlier field of the same goal and floor that has
+   * them.
+   */
+  searchWholeFloor(from: DistanceField | null = null): void {
+    if (this.whole !== null) return;
+    this.whole = from !== null && from.whole !== null && from.goal === this.goal && from.epoch === this.epoch ? from.whole : this.owner.wholeFloorDistances(this.goal);
+    this.searched.clear();
+    this.owner.grew(this, this.whole.byteLength);
   }
 
   /** The distance of a covered cell to the goal (the window must cover it); -1 when it is blocked or cut off. */
@@ -276,6 +297,9 @@ export class DistanceFields {
   private stampId = 0;
   private heapKey = new Float64Array(256);
   private heapCell = new Int32Array(256);
+  private queue = new Int32Array(0);
+  /** Tight cells counted so far in the bitmap being built (`countRow`). */
+  private tightCells = 0;
   /** Cells the last `searchToTight` expanded. */
   lastExpanded = 0;
   /** Cells a field's searches may expand before it takes a whole-floor breadth-first search instead. */
@@ -317,7 +341,9 @@ export class DistanceFields {
     this.rowScratch = new Int32Array(this.floorWords);
     this.tentative = new Int32Array(cells);
     this.stamp = new Int32Array(cells);
-    this.searchBudget = Math.max(4096, cells >> 2);
+    // A search expansion costs several times a breadth-first step: past about a sixteenth of
+    // the floor in expansions, one whole-floor search is the cheaper way on.
+    this.searchBudget = Math.max(1024, cells >> 4);
     const wholeFloorBytes = 4 * layout.height * ((layout.width + 31) >> 5);
     this.budgetBytes = Math.max(16 * wholeFloorBytes, budgetBytes);
   }
@@ -362,7 +388,11 @@ export class DistanceFields {
       this.cache.delete(goal);
       this.byGoal[goal] = null;
     }
-    const field = this.build(goal, x0, y0, x1, y1);
+    // A goal whose field went over its search budget is a maze-like case: its larger field
+    // covers the whole floor and takes the whole-floor search at once, so it is not enlarged
+    // again.
+    const maze = cached !== null && cached.searchedWholeFloor;
+    const field = maze ? this.build(goal, 0, 0, this.layout.width - 1, this.layout.height - 1, cached) : this.build(goal, x0, y0, x1, y1, null);
     while (this.cache.size > 0 && this.cachedBytes + field.bytes > this.budgetBytes) {
       const oldest = this.cache.keys().next().value as number;
       this.cachedBytes -= this.cache.get(oldest)!.bytes;
@@ -385,8 +415,11 @@ export class DistanceFields {
     if (this.byGoal[field.goal] === field) this.cachedBytes += bytes;
   }
 
-  /** Builds the tightness bitmap of the window columns x0..x1, rows y0..y1 plus a margin. */
-  private build(goal: number, x0: number, y0: number, x1: number, y1: number): DistanceField {
+  /**
+   * Builds the tightness bitmap of the window columns x0..x1, rows y0..y1 plus a margin;
+   * `from` (or null) is the goal's earlier field whose whole-floor distances the new one takes.
+   */
+  private build(goal: number, x0: number, y0: number, x1: number, y1: number, from: DistanceField | null): DistanceField {
     this.builds++;
     const layout = this.layout;
     const margin = this.margin;
@@ -405,22 +438,43 @@ export class DistanceFields {
     const eastMask = -1 << (gx & 31);
     const westMask = (gx & 31) === 31 ? -1 : ~(-1 << ((gx & 31) + 1));
     const goalOpen = this.open(goal, goal);
+    this.tightCells = 0;
     // The goal's row: tightness runs both ways from the goal along the floor.
     this.loadRow(wy0 + gy, wx0, w);
     if (goalOpen) {
       this.rowScratch[goalWord] |= goalBit;
       this.fillRow(tight, gy * rowWords, -1, rowWords, goalWord, eastMask, westMask, goalBit);
     }
+    let floorCells = this.countRow(tight, gy * rowWords, rowWords);
     // Then row by row away from it, seeded from the row before (toward the goal).
     for (let y = gy - 1; y >= 0; y--) {
       this.loadRow(wy0 + y, wx0, w);
       this.fillRow(tight, y * rowWords, (y + 1) * rowWords, rowWords, goalWord, eastMask, westMask, 0);
+      floorCells += this.countRow(tight, y * rowWords, rowWords);
     }
     for (let y = gy + 1; y < h; y++) {
       this.loadRow(wy0 + y, wx0, w);
       this.fillRow(tight, y * rowWords, (y - 1) * rowWords, rowWords, goalWord, eastMask, westMask, 0);
+      floorCells += this.countRow(tight, y * rowWords, rowWords);
     }
-    return new DistanceField(this, goal, wx0, wy0, w, h, tight, rowWords, this.epoch);
+    const field = new DistanceField(this, goal, wx0, wy0, w, h, tight, rowWords, this.epoch);
+    // Fewer than half the window's floor cells tight (a maze-like floor): the searches per cell
+    // would cost more than one whole-floor search, so take that at once (or the distances of
+    // `from`, the goal's smaller field that took one).
+    if (from !== null || 2 * this.tightCells < floorCells) field.searchWholeFloor(from);
+    return field;
+  }
+
+  /** Floor cells of the row in rowScratch; adds the row's tight cells to `tightCells`. */
+  private countRow(tight: Int32Array, at: number, rowWords: number): number {
+    let floor = 0;
+    let tightCount = 0;
+    for (let k = 0; k < rowWords; k++) {
+      floor += bitCount(this.rowScratch[k]);
+      tightCount += bitCount(tight[at + k]);
+    }
+    this.tightCells += tightCount;
+    return floor;
   }
 
   /** The floor's passable cells as bits per row. */
@@ -624,58 +678,57 @@ export class DistanceFields {
     return last;
   }
 
-  /** The distances of a field's window (row-major, -1: blocked or cut off), by one breadth-first search of the whole floor from its goal. */
-  windowDistances(field: DistanceField): Int32Array {
+  /** Every floor cell's distance to `goal` (-1: blocked or cut off), by one breadth-first search of the whole floor. */
+  wholeFloorDistances(goal: number): Int32Array {
     this.wholeFloorSearches++;
-    const { width, height } = this.layout;
+    const width = this.layout.width;
     const cellX = this.cellX;
-    const cellY = this.cellY;
-    const goal = field.goal;
+    const passable = this.passable;
     // `tentative` holds the distances, `stamp` marks the cells reached.
     const distance = this.tentative;
     const stamp = this.stamp;
     const reached = this.nextStamp();
-    const queue = new Int32Array(this.layout.cellCount);
+    if (this.queue.length < this.layout.cellCount) this.queue = new Int32Array(this.layout.cellCount);
+    const queue = this.queue;
     let tail = 0;
     if (this.open(goal, goal)) {
       stamp[goal] = reached;
       distance[goal] = 0;
       queue[tail++] = goal;
     }
+    const last = this.layout.cellCount - width;
     for (let head = 0; head < tail; head++) {
       const c = queue[head];
       const x = cellX[c];
-      const y = cellY[c];
       const next = distance[c] + 1;
-      if (y > 0 && stamp[c - width] !== reached && this.passable[c - width]) {
-        stamp[c - width] = reached;
-        distance[c - width] = next;
-        queue[tail++] = c - width;
+      let n = c - width;
+      if (c >= width && stamp[n] !== reached && passable[n]) {
+        stamp[n] = reached;
+        distance[n] = next;
+        queue[tail++] = n;
       }
-      if (x < width - 1 && stamp[c + 1] !== reached && this.passable[c + 1]) {
-        stamp[c + 1] = reached;
-        distance[c + 1] = next;
-        queue[tail++] = c + 1;
+      n = c + 1;
+      if (x < width - 1 && stamp[n] !== reached && passable[n]) {
+        stamp[n] = reached;
+        distance[n] = next;
+        queue[tail++] = n;
       }
-      if (y < height - 1 && stamp[c + width] !== reached && this.passable[c + width]) {
-        stamp[c + width] = reached;
-        distance[c + width] = next;
-        queue[tail++] = c + width;
+      n = c + width;
+      if (c < last && stamp[n] !== reached && passable[n]) {
+        stamp[n] = reached;
+        distance[n] = next;
+        queue[tail++] = n;
       }
-      if (x > 0 && stamp[c - 1] !== reached && this.passable[c - 1]) {
-        stamp[c - 1] = reached;
-        distance[c - 1] = next;
-        queue[tail++] = c - 1;
+      n = c - 1;
+      if (x > 0 && stamp[n] !== reached && passable[n]) {
+        stamp[n] = reached;
+        distance[n] = next;
+        queue[tail++] = n;
       }
     }
     this.cellsSearched += tail;
-    const out = new Int32Array(field.width * field.height);
-    for (let y = 0; y < field.height; y++) {
-      for (let x = 0; x < field.width; x++) {
-        const c = (field.y0 + y) * width + field.x0 + x;
-        out[y * field.width + x] = stamp[c] === reached ? distance[c] : -1;
-      }
-    }
+    const out = new Int32Array(this.layout.cellCount).fill(-1);
+    for (let k = 0; k < tail; k++) out[queue[k]] = distance[queue[k]];
     return out;
   }
 }
