@@ -160,7 +160,7 @@ export class DistanceField {
     return distance;
   }
 
-  /** True once the field has taken the whole-floor search (its searches went over budget). */
+  /** True once the field has taken the whole-floor search (a maze-like window, or searches over budget). */
   get searchedWholeFloor(): boolean {
     return this.whole !== null;
   }
