@@ -23,6 +23,7 @@ import { runReplication } from '../sim/engine.ts';
 import { policies } from '../policies/registry.ts';
 import { quantileSorted } from '../reports/stats/quantile-sorted.ts';
 import type { Scenario } from '../sim/model.ts';
+import { SpaceTimeAStar, type SearchRequest } from '../sim/space-time-astar.ts';
 
 const args = process.argv.slice(2);
 const json = args.includes('--json');
@@ -97,6 +98,7 @@ function steady(scenario: Scenario, runs: number): Row {
     wall.slice(1).sort((a, b) => a - b),
     0.5,
   );
+  const split = searchSplit(setup, delivered);
   const row: Row = {
     name: 'engine-steady',
     policy: scenario.policy.name,
@@ -109,9 +111,40 @@ function steady(scenario: Scenario, runs: number): Row {
     realTimeFactor: Math.round((scenario.run.hours * 3600) / median),
     delivered,
     wallMsPerDelivered: delivered > 0 ? Number(((median * 1000) / delivered).toFixed(3)) : null,
+    planningShare: Number(split.planningShare.toFixed(3)),
+    searchShare: Number(split.searchShare.toFixed(3)),
+    agentStepsPerSecondWithoutSearch: Math.round(agentSteps / (split.wallSeconds - split.searchSeconds)),
   };
   log(`engine-steady ${scenario.policy.name} ${scenario.fleet.robots} robots: ${row.agentStepsPerSecond} agent-steps/s (runs 2-${runs}, median)`);
   return row;
+}
+
+/**
+ * Where a warm run's wall time goes: one more run of the same replication with the
+ * space-time search timed (`SpaceTimeAStar.find` wrapped for this run only: two clock reads
+ * per search, well under 1% of the run). Its planning share (the policy's steps) and search
+ * share of wall time say what a faster search alone could give the row: agent-steps per
+ * second over the wall time less the search's is the row with a search that costs nothing.
+ */
+function searchSplit(setup: ReturnType<typeof prepareSetup>, delivered: number): { wallSeconds: number; searchSeconds: number; planningShare: number; searchShare: number } {
+  const prototype = SpaceTimeAStar.prototype as unknown as { find(request: SearchRequest): number };
+  const find = prototype.find;
+  let searchMs = 0;
+  prototype.find = function timedFind(this: SpaceTimeAStar, request: SearchRequest): number {
+    const start = performance.now();
+    const length = find.call(this, request);
+    searchMs += performance.now() - start;
+    return length;
+  };
+  let record: ReturnType<typeof runReplication>;
+  try {
+    record = runReplication(setup, 0);
+  } finally {
+    prototype.find = find;
+  }
+  if (record.delivered !== delivered) throw new Error(`engine-steady: the timed run delivered ${record.delivered}, run 1 ${delivered}`);
+  const wallSeconds = record.timing.wallSeconds;
+  return { wallSeconds, searchSeconds: searchMs / 1000, planningShare: record.timing.planningSeconds / wallSeconds, searchShare: searchMs / 1000 / wallSeconds };
 }
 
 /** The demo hall under saturated demand: every robot always has work, the hardest case for planners. */
