@@ -503,6 +503,39 @@ describe('safe-interval search with headings against a space-time A* over (cell,
   });
 });
 
+/** Steps to another cell along a path (a wait or a turn is not one). */
+function movesOf(path: Int32Array): number {
+  let moves = 0;
+  for (let i = 1; i < path.length; i++) if (path[i] !== path[i - 1]) moves++;
+  return moves;
+}
+
+describe('safe-interval search: the tie order among equal arrivals', () => {
+  it('a robot early for a taken goal waits on its way instead of driving the slack off (hand-worked)', () => {
+    // Open 7 x 5 floor. Robot 0 stands on the goal (5, 2) for ticks 0-9, then steps east to
+    // (6, 2) at tick 10 and rests there. Robot 1 starts at (1, 2) at tick 0, 4 cells west of
+    // the goal: the earliest arrival is tick 10 (the goal is free from then on), so 6 ticks
+    // are slack. Every path arriving at tick 10 is optimal; the search takes the one with the
+    // fewest moves: 4 steps east along the row (no other path has 4 moves) and 6 waits, at
+    // (4, 2) next to the goal, where the deeper-state order reaches first. A detour to burn
+    // the slack (north first, as the deeper-first order alone did) would make 10 moves.
+    const width = 7;
+    const at = (x: number, y: number) => y * width + x;
+    const layout = buildLayout(width, 5, new Uint8Array(width * 5).fill(CellKind.Floor));
+    const table = new ReservationTable(layout.cellCount, 2, 64);
+    table.reserve(0, Int32Array.from([...Array(10).fill(at(5, 2)), at(6, 2)]), 0, 0);
+    const search = new SpaceTimeAStar(layout, table);
+    const path = search.search({ robot: 1, start: at(1, 2), startTick: 0, goal: at(5, 2), heuristic: distanceTable(layout, at(5, 2)), holdTicks: 0, restForever: false });
+    expect(path === null ? null : Array.from(path)).toEqual([at(1, 2), at(2, 2), at(3, 2), ...Array(7).fill(at(4, 2)), at(5, 2)]);
+    // The same with forward-only robots starting north-facing (quarter turn 1 tick): the
+    // robot turns east and drives, and a turn is not a move, so the path makes its 4 moves
+    // and arrives at tick 10 (driving north first, straight ahead, would add 2 moves).
+    const turning = new SpaceTimeAStar(layout, table, 200_000, 16, 1);
+    const turned = turning.search({ robot: 1, start: at(1, 2), startTick: 0, goal: at(5, 2), heuristic: distanceTable(layout, at(5, 2)), holdTicks: 0, restForever: false, startHeading: 0 });
+    expect(turned === null ? null : { length: turned.length, moves: movesOf(turned) }).toEqual({ length: 11, moves: 4 });
+  });
+});
+
 describe('safe-interval search with a deadline (property test, fast-check)', () => {
   it('returns the search without deadline path for path when the reference arrival is before the deadline, else nothing, and stops doomed searches early', () => {
     // The reference arrival is the plain space-time A* above (Silver 2005), sharing no code
