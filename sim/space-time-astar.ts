@@ -133,6 +133,11 @@ const never = foreverTick;
 const fScale = 2 ** 33;
 const gScale = 2 ** 20;
 const movesCap = 2 ** 13 - 1;
+
+/** The heap key of a state: f and g in ticks after the search's start, `bound` its moves bound. */
+function heapKeyOf(f: number, bound: number, g: number): number {
+  return f * fScale + (bound < movesCap ? bound : movesCap) * gScale - g;
+}
 /** Starting size of the node, heap and interval arrays (see `nodeCell`). */
 const initialCapacity = 16;
 
@@ -445,6 +450,7 @@ export class SpaceTimeAStar {
       const leaveBy = this.intervalHi[interval] + 1;
       const latest = leaveBy < lastTick ? leaveBy : lastTick;
       const base = cell * 4;
+      const childMoves = this.nodeMoves[node] + 1;
       for (let d = 0; d < 4; d++) {
         const n = neighbors[base + d];
         if (n < 0) continue;
@@ -477,13 +483,11 @@ export class SpaceTimeAStar {
           this.nodeInterval[child] = i;
           this.nodeTick[child] = arrival;
           this.nodeParent[child] = node;
-          const moves = this.nodeMoves[node] + 1;
-          this.nodeMoves[child] = moves;
+          this.nodeMoves[child] = childMoves;
           const k = arrival + distance;
           const ready = oneWindow ? (onlyHi < k ? never : k > onlyLo ? k : onlyLo) : this.ready(k);
           if (ready > lastTick) continue; // the goal cannot be reached in time from here
-          const bound = moves + distance;
-          const key = (ready - startTick) * fScale + (bound < movesCap ? bound : movesCap) * gScale - (arrival - startTick);
+          const key = heapKeyOf(ready - startTick, childMoves + distance, arrival - startTick);
           // heapPush, written out.
           heapNode = this.heapNode;
           heapKey = this.heapKey;
@@ -774,7 +778,7 @@ export class SpaceTimeAStar {
     const g = tick - this.startTick;
     // f = arrival - startTick first; among equal f, fewer moves (a lower bound: moves so far
     // plus the distance left), then deeper nodes first (fewer expansions).
-    this.heapPush(node, (arrival - this.startTick) * fScale + (bound < movesCap ? bound : movesCap) * gScale - g);
+    this.heapPush(node, heapKeyOf(arrival - this.startTick, bound, g));
   }
 
   /** True when `goal` is reachable from `start` without entering a cell another robot rests on since before `tick`. */
