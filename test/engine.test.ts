@@ -330,7 +330,8 @@ describe('conservation, counted by task state (DESIGN §2: released = delivered 
   }
 
   /** Token passing on the demo hall for 30 minutes with a corruption applied at `atTick`. */
-  function corrupted(corrupt: (world: World) => void, tasksPerHour = 2500, atTick = 300) {
+  /** The run with `corrupt` applied at the steps from `atTick` on until it returns something other than false (false: nothing found to corrupt yet, or apply again). */
+  function corrupted(corrupt: (world: World) => boolean | void, tasksPerHour = 2500, atTick = 300) {
     const scenario = loadScenarioFile(path.join(scenariosFolder, 'demo-sortation.yaml'), { robots: 8, hours: 0.5, replications: 1, tasksPerHour });
     const setup = prepareSetup(scenario);
     const inner = setup.policy;
@@ -338,9 +339,10 @@ describe('conservation, counted by task state (DESIGN §2: released = delivered 
       ...inner,
       create(context, options) {
         const wrapped = inner.create(context, options);
+        let done = false;
         return {
           step(tick, moves) {
-            if (tick === atTick) corrupt(context.world);
+            if (!done && tick >= atTick) done = corrupt(context.world) !== false;
             return wrapped.step(tick, moves);
           },
         };
@@ -350,14 +352,21 @@ describe('conservation, counted by task state (DESIGN §2: released = delivered 
   }
 
   it('stops the run when a task vanishes from the open list (the next delivery finds one task short)', () => {
-    expect(corrupted((world) => world.openTasks.shift())).toThrow(/conservation broken at tick \d+: released \d+ != open/);
+    expect(corrupted((world) => {
+      world.openTasks.shift();
+    })).toThrow(/conservation broken at tick \d+: released \d+ != open/);
   });
 
   it("stops the run when a robot holds a task whose slot says it is open (the count by holder checks each state)", () => {
     expect(
       corrupted((world) => {
-        const robot = Array.from(world.robotTask).findIndex((task) => task >= 0 && world.taskState[task] === TaskState.Assigned);
-        world.taskState[world.robotTask[robot]] = TaskState.Open;
+        // Every task held before its pickup, at every step (a pickup would set the state again):
+        // the next delivery's count by holder finds one of them.
+        for (let r = 0; r < world.robotCount; r++) {
+          const task = world.robotTask[r];
+          if (task >= 0 && world.taskState[task] === TaskState.Assigned) world.taskState[task] = TaskState.Open;
+        }
+        return false;
       }),
     ).toThrow(/conservation broken: robot \d+ holds task \d+ in state 0/);
   });
@@ -366,13 +375,22 @@ describe('conservation, counted by task state (DESIGN §2: released = delivered 
     // At 300 tasks/h most slots are free again: the first free one is marked open.
     const phantom = (world: World) => {
       const free = Array.from(world.taskState.subarray(0, world.taskCount)).indexOf(TaskState.Free);
+      if (free < 0) return false;
       world.taskState[free] = TaskState.Open;
+      return true;
     };
     expect(corrupted(phantom, 300, 300)).toThrow(/conservation broken: free task slot \d+ holds a task in state 0/);
-    // Near the end no slot is reused any more: the recount at the end finds one open slot too many.
+    // Near the end no slot is reused any more: the recount at the end finds one open slot too
+    // many. The slot freed longest ago is reused last (free slots are reused newest first).
+    const phantomLast = (world: World) => {
+      const slots = world as unknown as { freeSlots: Int32Array; freeCount: number };
+      if (slots.freeCount === 0) return false;
+      world.taskState[slots.freeSlots[0]] = TaskState.Open;
+      return true;
+    };
     let message = '';
     try {
-      corrupted(phantom, 300, 1790)();
+      corrupted(phantomLast, 300, 1790)();
     } catch (error) {
       message = (error as Error).message;
     }
