@@ -34,15 +34,7 @@
  * hall under saturated demand that put 2.4-5.5 points of robot time into travel that was
  * waiting, and flow-batch at 200 robots delivered 4% more once robots waited). It is a
  * preference, not a guarantee: a state keeps its earliest arrival only, so a path with
- * fewer moves that reaches a state later is not kept. Last, among states equal in all
- * three, a move straight on (in the direction of the move that reached the expanded state)
- * before a turn; what is still tied goes by the heap (in practice, the order N, E, S, W).
- * Which of several equal paths a planner takes changes how robots meet: on the demo hall
- * under saturated demand, straight on first cut token passing's expansions at 40 robots by
- * 12% with capacity within its interval, where last-generated first among the remaining
- * ties (the common LIFO order) cut them by 15% but lost token passing 2.3% of its capacity
- * (and gave flow-batch 7%): see DEVELOPERS.md. Forward-only robots (headings) drive only
- * straight on: there the last criterion never applies.
+ * fewer moves that reaches a state later is not kept.
  *
  * Fail-fast: a search first checks that the goal can be reached at all around the robots
  * that rest for good (a rest that began before the start tick never ends on its own). On
@@ -133,18 +125,18 @@ export interface SearchRequest {
 
 const never = foreverTick;
 /**
- * Heap keys: f x 2^33 + min(moves bound, 2^13 - 1) x 2^20 - 2g + turned (0 straight on or
- * not a move from another state, 1 a turn), exact in a double while f < 2^20 and g < 2^19
- * (ticks after the search's start; paths stay within the horizon). The cap keeps f first
- * whatever the bound: it only blurs the order among paths longer than 8,191 moves.
+ * Heap keys: f x 2^33 + min(moves bound, 2^13 - 1) x 2^20 - g, exact in a double while f <
+ * 2^20 and g < 2^20 (ticks after the search's start; paths stay within the horizon). The
+ * cap keeps f first whatever the bound: it only blurs the order among paths longer than
+ * 8,191 moves.
  */
 const fScale = 2 ** 33;
 const gScale = 2 ** 20;
 const movesCap = 2 ** 13 - 1;
 
-/** The heap key of a state: f and g in ticks after the search's start, `bound` its moves bound, `turned` 1 when its move turns. */
-function heapKeyOf(f: number, bound: number, g: number, turned: number): number {
-  return f * fScale + (bound < movesCap ? bound : movesCap) * gScale - 2 * g + turned;
+/** The heap key of a state: f and g in ticks after the search's start, `bound` its moves bound. */
+function heapKeyOf(f: number, bound: number, g: number): number {
+  return f * fScale + (bound < movesCap ? bound : movesCap) * gScale - g;
 }
 /** Starting size of the node, heap and interval arrays (see `nodeCell`). */
 const initialCapacity = 16;
@@ -217,7 +209,6 @@ export class SpaceTimeAStar {
   private walkCell = new Int32Array(256);
   private walkParent = new Int32Array(256);
   private walkPending = new Int32Array(256);
-  private walkDirection = new Uint8Array(256);
   private readonly walkStamp: Int32Array;
   private walkId = 0;
   /** Searches that the reachability pass ended. */
@@ -344,8 +335,8 @@ export class SpaceTimeAStar {
 
     const neighbors = this.layout.neighbors;
     let expanded = 0;
-    // Keys are (f - startTick) x 2^33 + bound x 2^20 - 2g + turned with bound < 2^13, 0 <= g < 2^19 and turned 0 or 1 (`fScale`): a key above this means f >= deadline.
-    const stopKey = deadline >= never ? Infinity : (deadline - startTick) * fScale - gScale + 1;
+    // Keys are (f - startTick) x 2^33 + bound x 2^20 - g with bound < 2^13 and 0 <= g < 2^20 (`fScale`): a key above this means f >= deadline.
+    const stopKey = deadline >= never ? Infinity : (deadline - startTick) * fScale - gScale;
     // A search on an open floor expands about as many states as its distance; past that, it
     // pays for the check once it has spent about what a labelling costs (about one expansion
     // per 32 floor cells), so neither a doomed search nor a needless check costs much more
@@ -460,7 +451,6 @@ export class SpaceTimeAStar {
       const latest = leaveBy < lastTick ? leaveBy : lastTick;
       const base = cell * 4;
       const childMoves = this.nodeMoves[node] + 1;
-      const cameFrom = this.nodeHeading[node];
       for (let d = 0; d < 4; d++) {
         const n = neighbors[base + d];
         if (n < 0) continue;
@@ -494,11 +484,10 @@ export class SpaceTimeAStar {
           this.nodeTick[child] = arrival;
           this.nodeParent[child] = node;
           this.nodeMoves[child] = childMoves;
-          this.nodeHeading[child] = d + 1;
           const k = arrival + distance;
           const ready = oneWindow ? (onlyHi < k ? never : k > onlyLo ? k : onlyLo) : this.ready(k);
           if (ready > lastTick) continue; // the goal cannot be reached in time from here
-          const key = heapKeyOf(ready - startTick, childMoves + distance, arrival - startTick, cameFrom !== 0 && cameFrom !== d + 1 ? 1 : 0);
+          const key = heapKeyOf(ready - startTick, childMoves + distance, arrival - startTick);
           // heapPush, written out.
           heapNode = this.heapNode;
           heapKey = this.heapKey;
@@ -625,12 +614,10 @@ export class SpaceTimeAStar {
       this.walkCell = new Int32Array(2 * (2 * limit + 2));
       this.walkParent = new Int32Array(2 * (2 * limit + 2));
       this.walkPending = new Int32Array(2 * (2 * limit + 2));
-      this.walkDirection = new Uint8Array(2 * (2 * limit + 2));
     }
     const cellOf = this.walkCell;
     const parentOf = this.walkParent;
     const pending = this.walkPending;
-    const cameFrom = this.walkDirection;
     const reached = this.walkStamp;
     if (++this.walkId === 0x7fffffff) {
       reached.fill(0);
@@ -643,7 +630,6 @@ export class SpaceTimeAStar {
     const robot = this.robot;
     cellOf[0] = start;
     parentOf[0] = -1;
-    cameFrom[0] = 0;
     reached[start] = id;
     let states = 1;
     let pendingCount = 0;
@@ -655,43 +641,26 @@ export class SpaceTimeAStar {
       const base = cell * 4;
       let first = -1;
       let second = -1;
-      let firstDirection = 0;
-      let secondDirection = 0;
       for (let d = 0; d < 4; d++) {
         const n = neighbors[base + d];
         if (n < 0 || heuristic[n] !== closer || reached[n] === id) continue;
         // The goal: the arrival window holds (ready(arrival) === arrival, checked above); other cells: free at tick + 1.
         if (!table.mayStep(cell, n, tick, robot, n === goal)) continue;
         if (n === goal) return this.walkTrace(current, dist);
-        if (first < 0) {
-          first = n;
-          firstDirection = d + 1;
-        } else if (second < 0) {
-          second = n;
-          secondDirection = d + 1;
-        } else return -1;
+        if (first < 0) first = n;
+        else if (second < 0) second = n;
+        else return -1;
       }
       if (first >= 0) {
         reached[first] = id;
         if (second >= 0) {
           reached[second] = id;
-          // Straight on before a turn (the search's key order); else the first in N, E, S, W order.
-          const here = cameFrom[current];
-          if (here !== 0 && secondDirection === here) {
-            const cell2 = first;
-            first = second;
-            second = cell2;
-            secondDirection = firstDirection;
-            firstDirection = here;
-          }
           cellOf[states] = second;
           parentOf[states] = current;
-          cameFrom[states] = secondDirection;
           pending[pendingCount++] = states++;
         }
         cellOf[states] = first;
         parentOf[states] = current;
-        cameFrom[states] = firstDirection;
         current = states++;
       } else {
         if (pendingCount === 0) return -1;
@@ -809,7 +778,7 @@ export class SpaceTimeAStar {
     const g = tick - this.startTick;
     // f = arrival - startTick first; among equal f, fewer moves (a lower bound: moves so far
     // plus the distance left), then deeper nodes first (fewer expansions).
-    this.heapPush(node, heapKeyOf(arrival - this.startTick, bound, g, 0));
+    this.heapPush(node, heapKeyOf(arrival - this.startTick, bound, g));
   }
 
   /** True when `goal` is reachable from `start` without entering a cell another robot rests on since before `tick`. */
@@ -1020,7 +989,7 @@ export class SpaceTimeAStar {
       this.nodeCell, this.nodeInterval, this.nodeTick, this.nodeParent, this.nodeHeading, this.nodeMoves, this.heapNode, this.heapKey,
       this.intervalLo, this.intervalHi, this.intervalBest, this.cellStamp, this.cellFirst, this.cellCount,
       this.windowLo, this.windowHi, this.label, this.labelQueue, this.labelRest, this.passStamp,
-      this.walkCell, this.walkParent, this.walkPending, this.walkDirection, this.walkStamp, this.path,
+      this.walkCell, this.walkParent, this.walkPending, this.walkStamp, this.path,
     ];
     let bytes = 0;
     for (const a of arrays) bytes += a.byteLength;

@@ -536,33 +536,6 @@ describe('safe-interval search: the tie order among equal arrivals', () => {
   });
 });
 
-describe('safe-interval search: straight on before a turn among otherwise equal states', () => {
-  it('keeps going west rather than turning south where both are as short (hand-worked)', () => {
-    // 4 x 3 floor, (3, 2) a wall. Robot at (3, 1), goal (0, 2), empty table: distance 4, and
-    // the wall makes the first move west, to (2, 1). From there south (2, 2) and west (1, 1)
-    // are both one step closer, with the same arrival, moves and depth. Straight on first:
-    // west, west, then south (one turn). The order N, E, S, W alone took south there:
-    // (2, 2), (1, 2), (0, 2), two turns. The walk over the shortest states and the search
-    // without it must agree (test/free-path.test.ts).
-    const width = 4;
-    const at = (x: number, y: number) => y * width + x;
-    const kind = new Uint8Array(width * 3).fill(CellKind.Floor);
-    kind[at(3, 2)] = CellKind.Blocked;
-    const layout = buildLayout(width, 3, kind);
-    const table = new ReservationTable(layout.cellCount, 1, 64);
-    const request = { robot: 0, start: at(3, 1), startTick: 0, goal: at(0, 2), heuristic: distanceTable(layout, at(0, 2)), holdTicks: 0, restForever: false };
-    const expected = [at(3, 1), at(2, 1), at(1, 1), at(0, 1), at(0, 2)];
-    const walked = new SpaceTimeAStar(layout, table);
-    const walkedPath = walked.search(request);
-    expect(walked.freePaths).toBe(1);
-    expect(walkedPath === null ? null : Array.from(walkedPath)).toEqual(expected);
-    const searched = new SpaceTimeAStar(layout, table);
-    searched.freePathFirst = false;
-    const searchedPath = searched.search(request);
-    expect(searchedPath === null ? null : Array.from(searchedPath)).toEqual(expected);
-  });
-});
-
 describe('safe-interval search with a deadline (property test, fast-check)', () => {
   it('returns the search without deadline path for path when the reference arrival is before the deadline, else nothing, and stops doomed searches early', () => {
     // The reference arrival is the plain space-time A* above (Silver 2005), sharing no code
