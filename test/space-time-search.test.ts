@@ -306,6 +306,29 @@ describe('safe-interval search against a plain space-time A* (property test, fas
     expect(reusedSkips).toBeGreaterThan(10);
   });
 
+  it('waits longer for the lazy check while no recent search was unreachable (hand-worked)', () => {
+    // 40 x 3 floor (120 cells); robots 0-2 rest on column 30, a wall between the searcher at
+    // (2, 1) and the goal (35, 1), distance 33. The region left of the wall holds 90 states, so
+    // the lazy check ends each search. A fresh search (no unreachable search yet) checks once
+    // it has expanded 16 + 33 + 120 / 4 = 79 states: at the 80th. After that one, with the wall
+    // moved (the labels no longer hold) and a recent unreachable search, it checks after
+    // 16 + 33 + 120 / 32 = 52: at the 53rd.
+    const width = 40;
+    const at = (x: number, y: number) => y * width + x;
+    const layout = buildLayout(width, 3, new Uint8Array(width * 3).fill(CellKind.Floor));
+    const table = new ReservationTable(layout.cellCount, searcher + 1, 256);
+    const search = new SpaceTimeAStar(layout, table);
+    for (const [r, c] of [[0, at(30, 0)], [1, at(30, 1)], [2, at(30, 2)]]) table.rest(r, c, 0);
+    const request = { robot: searcher, start: at(2, 1), startTick: 0, goal: at(35, 1), heuristic: distanceTable(layout, at(35, 1)), holdTicks: 0, restForever: false };
+    expect(search.search(request)).toBeNull();
+    expect(search.unreachableSkips).toBe(1);
+    expect(search.expansions).toBe(80);
+    table.rest(1, at(31, 1), 0);
+    expect(search.search(request)).toBeNull();
+    expect(search.unreachableSkips).toBe(2);
+    expect(search.expansions).toBe(80 + 53);
+  });
+
   it('on a crowded floor, after many unreachable searches, checks reachability before searching, with the reference results', () => {
     // 40 x 3 floor; robots 0-2 rest on column 30, a wall between the searcher (robot 9 at
     // (2, 1)) and the goals at column 35. Hand-worked: every goal there is unreachable until
