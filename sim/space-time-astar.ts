@@ -45,10 +45,9 @@
  * revision and the tick are unchanged). When the labels are stale the check is lazy: it runs
  * only once the search has spent `reachabilityAfter` + its distance + floor cells / 32
  * expansions (floor cells / 4 while no recent search ended unreachable), since a search
- * that succeeds quickly needs no proof that it can; but while
- * more than a quarter of recent searches ended unreachable (robots boxed in by resting
- * ones), a breadth-first pass from the start, stopping at the goal, runs first, as the old
- * always-on check did. The check only ends searches that could not succeed, so it never
+ * that succeeds quickly needs no proof that it can; but while more than a quarter of recent
+ * searches ended unreachable (robots boxed in by resting ones), a breadth-first pass from
+ * the start, stopping at the goal, runs first, as the old always-on check did. The check only ends searches that could not succeed, so it never
  * changes a result.
  *
  * Shortest layer first (`freeShortestPath`): when the goal can be entered at startTick +

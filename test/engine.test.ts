@@ -329,8 +329,11 @@ describe('conservation, counted by task state (DESIGN §2: released = delivered 
     });
   }
 
-  /** Token passing on the demo hall for 30 minutes with a corruption applied at `atTick`. */
-  /** The run with `corrupt` applied at the steps from `atTick` on until it returns something other than false (false: nothing found to corrupt yet, or apply again). */
+  /**
+   * Token passing on the demo hall for 30 minutes, with `corrupt` applied at each step from
+   * `atTick` on until it returns something other than false (false: nothing found to corrupt
+   * yet, or apply again).
+   */
   function corrupted(corrupt: (world: World) => boolean | void, tasksPerHour = 2500, atTick = 300) {
     const scenario = loadScenarioFile(path.join(scenariosFolder, 'demo-sortation.yaml'), { robots: 8, hours: 0.5, replications: 1, tasksPerHour });
     const setup = prepareSetup(scenario);
