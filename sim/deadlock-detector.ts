@@ -201,14 +201,15 @@ export class DeadlockDetector {
   private readonly reached: Uint8Array;
   private readonly bfs: Int32Array;
   /**
-   * Per cell, side by side: the stamp of the last evaluation that found a robot there at
-   * tick + 1, and that robot. The detector runs right after the policy's step has filled the
-   * caches with its own data, so what one robot reads about a cell is kept on one line.
+   * Per cell, the last robot found to take it at tick + 1 in an evaluation that wrote the
+   * table. An entry is current when that robot's `nextOf` is still the cell: every robot
+   * writes its next cell in such an evaluation, in robot order, so a cell some robot takes
+   * names the highest-numbered of them, and an entry left from an earlier evaluation names a
+   * robot that now goes elsewhere. No stamp, so one 4-byte write per robot and tick.
    */
   private readonly nextCell: Int32Array;
   /** The cell each robot takes at tick + 1 (its own when fixed). */
   private readonly nextOf: Int32Array;
-  private stamp = 0;
   private readonly queuedNow: Int32Array;
   private touchedStations: number[] = [];
   /** The other of two lists that take turns as `touchedStations` (no list per evaluation). */
@@ -274,7 +275,7 @@ export class DeadlockDetector {
     this.previousBlocked = new Int32Array(robots);
     this.reached = new Uint8Array(robots);
     this.bfs = new Int32Array(robots);
-    this.nextCell = new Int32Array(layout.cellCount * 2);
+    this.nextCell = new Int32Array(layout.cellCount).fill(-1);
     this.nextOf = new Int32Array(robots);
     this.livelockCandidates = new Int32Array(robots);
     this.queuedNow = new Int32Array(stationCount);
@@ -335,7 +336,6 @@ export class DeadlockDetector {
     const waitCount = this.waitCount;
     const goalProgress = this.goalProgress;
     const deadlockTicks = this.deadlockTicks;
-    const stamp = ++this.stamp;
     const nextOf = this.nextOf;
     // Turns and held-back moves exist only when the scenario has them (their arrays stay -1 otherwise).
     const turning = world.turnTicks > 0;
@@ -461,17 +461,14 @@ export class DeadlockDetector {
     const useTable = standingCount > 4;
     if (useTable) {
       const nextCell = this.nextCell;
-      for (let r = 0; r < robots; r++) {
-        nextCell[nextOf[r] * 2] = stamp;
-        nextCell[nextOf[r] * 2 + 1] = r;
-      }
+      for (let r = 0; r < robots; r++) nextCell[nextOf[r]] = r;
     }
     for (let i = 0; i < standingCount; i++) {
       const r = standing[i];
       const cell = cells[r];
       const wish = wanted === null ? -1 : wanted[r];
       if (wish >= 0) {
-        const owner = wish === cell ? -1 : this.ownerAt(wish, stamp, useTable);
+        const owner = wish === cell ? -1 : this.ownerAt(wish, useTable);
         if (owner < 0 || owner === r) status[r] = W.Free;
         else {
           status[r] = W.Blocked;
@@ -498,7 +495,7 @@ export class DeadlockDetector {
         const n = neighbors[cell * 4 + d];
         if (n < 0 || (rank & (1 << d)) !== 0) continue;
         closer++;
-        const owner = this.ownerAt(n, stamp, useTable);
+        const owner = this.ownerAt(n, useTable);
         if (owner < 0 || owner === r) {
           free = true;
           break;
@@ -534,9 +531,12 @@ export class DeadlockDetector {
   }
 
   /** The robot that takes `cell` at tick + 1 (the highest-numbered if several do), or -1. */
-  private ownerAt(cell: number, stamp: number, useTable: boolean): number {
-    if (useTable) return this.nextCell[cell * 2] === stamp ? this.nextCell[cell * 2 + 1] : -1;
+  private ownerAt(cell: number, useTable: boolean): number {
     const nextOf = this.nextOf;
+    if (useTable) {
+      const owner = this.nextCell[cell];
+      return owner >= 0 && nextOf[owner] === cell ? owner : -1;
+    }
     for (let r = this.robots - 1; r >= 0; r--) if (nextOf[r] === cell) return r;
     return -1;
   }

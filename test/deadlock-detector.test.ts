@@ -60,6 +60,38 @@ describe('wait-for graph on hand-built positions', () => {
   });
 
 
+  it('a cell taken at the last tick but free at this one is free (the per-cell table of next cells holds no stale owner)', () => {
+    // Robot 0 at 1:1 heads for 7:1; its only closer neighbour is 2:1. Robot 1 at 3:1 takes
+    // 2:1 at the first tick, then stays put at the second. Robots 2-5 stand in the lower row
+    // with goals, so that more than four robots stand and the detector uses its per-cell table.
+    const { world, detector, at } = handWorld(
+      ['##########', '#........#', '#........#', '##########'],
+      [
+        [1, 1],
+        [3, 1],
+        [2, 2],
+        [3, 2],
+        [4, 2],
+        [5, 2],
+      ],
+      new Map([
+        [0, [7, 1]],
+        [2, [8, 2]],
+        [3, [8, 2]],
+        [4, [8, 2]],
+        [5, [8, 2]],
+      ]),
+    );
+    const next = Int32Array.from(world.robotCell);
+    next[1] = at([2, 1]);
+    world.currentTick = 0;
+    detector.evaluate(0, world, next, null, false);
+    expect(detector.status[0]).toBe(WaitStatus.Blocked);
+    world.currentTick = 1;
+    detector.evaluate(1, world, world.robotCell, null, false);
+    expect(detector.status[0]).toBe(WaitStatus.Free);
+  });
+
   it('a queue behind a robot in service at a station is queue time, never an episode', () => {
     // Robots 1..3 stand in line for the pickup at 7:1, where robot 0 is loading for 300 ticks.
     const { world, detector, queued, stationOf, at } = handWorld(
