@@ -210,6 +210,8 @@ export class DeadlockDetector {
   private readonly nextCell: Int32Array;
   /** The cell each robot takes at tick + 1 (its own when fixed). */
   private readonly nextOf: Int32Array;
+  /** Cell offsets of the directions of `Layout.openDirections` (north, east, south, west). */
+  private readonly dirOffset: Int32Array;
   private readonly queuedNow: Int32Array;
   private touchedStations: number[] = [];
   /** The other of two lists that take turns as `touchedStations` (no list per evaluation). */
@@ -277,6 +279,7 @@ export class DeadlockDetector {
     this.bfs = new Int32Array(robots);
     this.nextCell = new Int32Array(layout.cellCount).fill(-1);
     this.nextOf = new Int32Array(robots);
+    this.dirOffset = Int32Array.of(-layout.width, 1, layout.width, -1);
     this.livelockCandidates = new Int32Array(robots);
     this.queuedNow = new Int32Array(stationCount);
     this.lastServed = new Int32Array(layout.cellCount).fill(-1);
@@ -451,7 +454,10 @@ export class DeadlockDetector {
 
     // Robots standing with a goal: free (a cell they want is free at tick + 1) or blocked
     // (waiting on the robots that hold every such cell).
-    const neighbors = this.layout.neighbors;
+    // Neighbours from one byte of open directions per cell and the four offsets (the layout's
+    // 16-byte neighbour entries are a cache line per four cells on a big hall).
+    const openDirs = this.layout.openDirections;
+    const offsets = this.dirOffset;
     const waitsOn = this.waitsOn;
     const blockedList = this.blockedList;
     let blocked = 0;
@@ -491,9 +497,10 @@ export class DeadlockDetector {
       let closer = 0;
       let free = false;
       let count = 0;
-      for (let d = 0; d < 4 && rank >= 0; d++) {
-        const n = neighbors[cell * 4 + d];
-        if (n < 0 || (rank & (1 << d)) !== 0) continue;
+      const open = rank >= 0 ? openDirs[cell] & ~rank : 0;
+      for (let d = 0; d < 4; d++) {
+        if (((open >> d) & 1) === 0) continue;
+        const n = cell + offsets[d];
         closer++;
         const owner = this.ownerAt(n, useTable);
         if (owner < 0 || owner === r) {
