@@ -119,7 +119,8 @@ export class Pibt implements Policy {
   private readonly reserved: Uint8Array;
   private reserveStamp = 0;
   private readonly parent: Int32Array;
-  private readonly candidates: Int32Array;
+  /** Each robot's candidate moves, best first: 0 to stay, d + 1 for the neighbour in direction d (one byte each, so the per-robot block stays small on big fleets). */
+  private readonly candidates: Uint8Array;
   private readonly candidateCount: Uint8Array;
   private readonly cursor: Uint8Array;
   private readonly stack: Int32Array;
@@ -213,7 +214,7 @@ export class Pibt implements Policy {
     this.next = new Int32Array(robots).fill(-1);
     this.reserved = new Uint8Array(layout.cellCount);
     this.parent = new Int32Array(robots).fill(-1);
-    this.candidates = new Int32Array(robots * slots);
+    this.candidates = new Uint8Array(robots * slots);
     this.candidateCount = new Uint8Array(robots);
     this.cursor = new Uint8Array(robots);
     this.stack = new Int32Array(robots);
@@ -545,6 +546,7 @@ export class Pibt implements Policy {
     const stamp = this.reserveStamp;
     const parent = this.parent;
     const candidates = this.candidates;
+    const offsets = this.dirOffset;
     const candidateCount = this.candidateCount;
     const cursor = this.cursor;
     const stack = this.stack;
@@ -568,7 +570,8 @@ export class Pibt implements Policy {
       let descended = false;
       let moved = false;
       while (cursor[a] < candidateCount[a]) {
-        const v = candidates[a * slots + cursor[a]];
+        const move = candidates[a * slots + cursor[a]];
+        const v = move === 0 ? cells[a] : cells[a] + offsets[move - 1];
         if (reserved[v] === stamp || v === parentCell) {
           cursor[a]++;
           continue;
@@ -754,7 +757,7 @@ export class Pibt implements Policy {
         i--;
       }
       keys[i] = key;
-      candidates[base + i] = v;
+      candidates[base + i] = d + 1;
     }
     this.candidateCount[r] = count;
   }
