@@ -127,16 +127,7 @@ export class Pibt implements Policy {
   private readonly sortKey: Int32Array;
   /** The world's and layout's arrays read in the inner loop (their identity never changes). */
   private readonly robotCell: Int32Array;
-  /**
-   * One byte per cell, 1 where a robot stands (the candidate order's "taken now" bit): the
-   * set of the robots' cells, updated at each step from the robots that moved since the last
-   * (`seenCell`), so `push` reads 120 KB that stay in a core's cache on a 120,000-cell hall
-   * instead of the world's 4-byte occupant per cell. Equal to `occupant >= 0` while no two
-   * robots share a cell, which PIBT's moves keep.
-   */
-  private readonly occupied: Uint8Array;
-  private readonly seenCell: Int32Array;
-  private readonly movedSince: Int32Array;
+  private readonly occupant: Int32Array;
   private readonly neighbors: Int32Array;
   /** Per cell, bit d set when the neighbour in direction d is floor (Layout.openDirections: a table that stays in cache on big halls). */
   private readonly openDirs: Uint8Array;
@@ -220,9 +211,7 @@ export class Pibt implements Policy {
     this.stack = new Int32Array(robots);
     this.sortKey = new Int32Array(slots);
     this.robotCell = world.robotCell;
-    this.occupied = new Uint8Array(layout.cellCount);
-    this.seenCell = new Int32Array(robots).fill(-1);
-    this.movedSince = new Int32Array(robots);
+    this.occupant = world.occupant;
     this.neighbors = layout.neighbors;
     this.openDirs = layout.openDirections;
     this.dirOffset = Int32Array.of(-layout.width, 1, layout.width, -1);
@@ -299,7 +288,6 @@ export class Pibt implements Policy {
       }
     }
 
-    this.syncOccupied();
     // A new stamp drops last tick's reservations, then the handling robots are fixed on their cells.
     const next = this.next;
     const reserved = this.reserved;
@@ -346,25 +334,6 @@ export class Pibt implements Policy {
     }
     if (world.turnTicks > 0 && turns !== undefined) this.turning.apply(moves, turns);
     return busy ? tick + 1 : Infinity;
-  }
-
-  /** Brings `occupied` up to the robots' cells: the cells left by robots that moved are cleared first, then the cells they stand on set. */
-  private syncOccupied(): void {
-    const cells = this.robotCell;
-    const seen = this.seenCell;
-    const occupied = this.occupied;
-    const moved = this.movedSince;
-    let count = 0;
-    for (let r = 0; r < this.robots; r++) {
-      if (cells[r] === seen[r]) continue;
-      if (seen[r] >= 0) occupied[seen[r]] = 0;
-      moved[count++] = r;
-    }
-    for (let i = 0; i < count; i++) {
-      const r = moved[i];
-      seen[r] = cells[r];
-      occupied[cells[r]] = 1;
-    }
   }
 
   onRelocated(_robot: number, _tick: number): void {
@@ -725,7 +694,7 @@ export class Pibt implements Policy {
         }
       }
     }
-    const occupied = this.occupied;
+    const occupant = this.occupant;
     const candidates = this.candidates;
     const base = r * slots;
     const keys = this.sortKey;
@@ -745,7 +714,7 @@ export class Pibt implements Policy {
       // Distance first, then (forward-only) turns, then cells empty now, then a seeded hash of (tick, robot, cell).
       const step = v === cell ? 1 : farther < 0 ? 2 : (farther >> d) & 1 ? 2 : 0;
       const turn = heading < 0 || v === cell ? 0 : quarterTurns(heading, d);
-      const busy = v !== cell ? occupied[v] : 0;
+      const busy = v !== cell && occupant[v] >= 0 ? 1 : 0;
       let h = Math.imul(mix ^ (mix >>> 13) ^ v, 0xc2b2ae35);
       h ^= h >>> 16;
       const key = step * 16384 + turn * 4096 + busy * 2048 + (h & 2047);
